@@ -1,0 +1,123 @@
+/* result.h - the results of reducing one test: measured points with their
+ * intermediate values, the spliced curve, summary quantities with notes, and
+ * QC flags. Filled by sg_reduce(); read by the writers, plots and reports. */
+#ifndef SEDGRADE_RESULT_H
+#define SEDGRADE_RESULT_H
+
+#include <stdbool.h>
+#include <stddef.h>
+
+#include "sedgrade/curve.h"
+#include "sedgrade/error.h"
+#include "sedgrade/qc.h"
+
+enum sg_source { SG_SOURCE_SIEVE = 0, SG_SOURCE_FINE_SIEVE, SG_SOURCE_HYDROMETER, SG_SOURCE_PIPETTE };
+
+/* One measured point. Fields that do not apply to the source are NaN. */
+struct sg_point {
+    enum sg_source source;
+    unsigned line;              /* input line of the row */
+    double diameter_mm;         /* sieve aperture or Stokes diameter */
+    double percent_finer;       /* percent of the whole sample */
+    double percent_specimen;    /* percent of the sedimentation specimen (sieve: = percent_finer) */
+    /* sieves */
+    double retained_g;
+    double cumulative_retained_g;
+    /* sedimentation */
+    double elapsed_min;
+    double temp_c;              /* thermometer correction applied */
+    double reading;             /* hydrometer reading as read */
+    double blank_reading;       /* blank (composite) reading used */
+    double corrected_reading;   /* reading - blank */
+    double depth_reading;       /* reading + meniscus correction */
+    double effective_depth_mm;  /* hydrometer effective depth or pipette sampling depth */
+    double concentration_g_l;   /* hydrometer: soil per litre at the effective depth */
+    double solids_g;            /* pipette: solids in the sample */
+    double net_solids_g;        /* pipette: solids less the dispersant share */
+    double water_density_kg_m3;
+    double viscosity_mpa_s;
+    double reynolds;
+    /* Monte Carlo standard uncertainty of percent_finer; NaN unless --mc */
+    double percent_finer_u;
+    unsigned flags;             /* enum sg_point_flag bits */
+    bool on_curve;              /* used to build the curve */
+};
+
+#define SG_QNAME_MAX 40
+#define SG_QTEXT_MAX 64
+#define SG_QNOTE_MAX 240
+
+/* One summary quantity (a row of <id>.summary.csv). */
+struct sg_quantity {
+    char name[SG_QNAME_MAX];  /* e.g. "d10_mm" */
+    char unit[16];            /* "mm", "%", "" */
+    bool determined;          /* false: value empty, note says why */
+    bool is_text;             /* categorical value in text (e.g. usda_texture) */
+    double value;
+    char text[SG_QTEXT_MAX];
+    char note[SG_QNOTE_MAX];
+    /* Monte Carlo (has_u): standard uncertainty and 95 % coverage interval */
+    bool has_u;
+    double u, low95, high95;
+};
+
+#define SG_FLAG_NAME_MAX 40
+#define SG_FLAG_MSG_MAX 240
+
+/* One QC finding. */
+struct sg_flag {
+    char name[SG_FLAG_NAME_MAX]; /* e.g. "reynolds", "junction_gap" */
+    enum sg_severity severity;
+    unsigned line;               /* input line concerned, 0 = whole test */
+    char message[SG_FLAG_MSG_MAX];
+};
+
+struct sg_result {
+    char id[64];
+    struct sg_point *points;
+    size_t n_points, cap_points;
+    struct sg_quantity *quantities;
+    size_t n_quantities, cap_quantities;
+    struct sg_flag *flags;
+    size_t n_flags, cap_flags;
+    struct sg_curve curve;
+    double pp_split;             /* percent of the whole sample passing the split sieve */
+    char calibration_used[256];  /* "instrument@date;..." or "inline" */
+};
+
+void sg_result_init(struct sg_result *r);
+/* Frees everything; r is re-initialised. Accepts NULL. */
+void sg_result_release(struct sg_result *r);
+/* Empties r but keeps its buffers (for reuse across records). */
+void sg_result_clear(struct sg_result *r);
+
+/* Appenders: SG_OK or SG_ENOMEM. */
+enum sg_status sg_result_add_point(struct sg_result *r, const struct sg_point *p);
+enum sg_status sg_result_add_flag(struct sg_result *r, const char *name, enum sg_severity sev, unsigned line,
+                                  const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 5, 6)))
+#endif
+    ;
+/* Adds a determined numeric quantity. */
+enum sg_status sg_result_add_value(struct sg_result *r, const char *name, const char *unit, double value,
+                                   const char *note);
+/* Adds a quantity that could not be determined; note says why. */
+enum sg_status sg_result_add_undetermined(struct sg_result *r, const char *name, const char *unit,
+                                          const char *note);
+/* Adds a categorical quantity (text value). */
+enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const char *text, const char *note);
+
+/* The quantity called name, or NULL. */
+struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *name);
+
+/* A point initialised with NaN in every numeric field that may not apply. */
+struct sg_point sg_point_blank(enum sg_source source, unsigned line);
+
+/* Worst severity among the flags (SG_SEVERITY_INFO when none). */
+enum sg_severity sg_result_worst(const struct sg_result *r);
+
+const char *sg_source_name(enum sg_source s);
+const char *sg_severity_name(enum sg_severity s);
+
+#endif

@@ -1,0 +1,77 @@
+/* hydrometer.c - reduction of one hydrometer reading (METHODS.md 3.2-3.4). */
+#include "sedgrade/hydrometer.h"
+
+#include <math.h>
+
+#include "sedgrade/constants.h"
+#include "sedgrade/stokes.h"
+#include "sedgrade/water.h"
+
+double sg_hydrometer_concentration_factor(enum sg_scale scale, double particle_density_mg_m3)
+{
+    const double gs = particle_density_mg_m3;
+    if (!(gs > 1.0))
+        return NAN;
+    switch (scale) {
+    case SG_SCALE_G_PER_L:
+        return (SG_GL_SCALE_BASIS_GS - 1.0) * gs / (SG_GL_SCALE_BASIS_GS * (gs - 1.0));
+    case SG_SCALE_DENSITY:
+        return gs / (gs - 1.0);
+    case SG_SCALE_NONE:
+        break;
+    }
+    return NAN;
+}
+
+enum sg_status sg_hydrometer_reduce(const struct sg_hydrometer_input *in, struct sg_hydrometer_point *out,
+                                    struct sg_error *err)
+{
+    if (in->scale == SG_SCALE_NONE)
+        return sg_error_set(err, SG_EINVAL, 0, 0,
+                            "hydrometer reading scale is not set (add 'test,reading_scale,g_per_l' or "
+                            "'test,reading_scale,density')");
+    if (!isfinite(in->elapsed_min) || in->elapsed_min <= 0.0)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "elapsed time %g min must be positive", in->elapsed_min);
+    if (!isfinite(in->specimen_dry_mass_g) || in->specimen_dry_mass_g <= 0.0)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "specimen dry mass %g g must be positive",
+                            in->specimen_dry_mass_g);
+    if (!isfinite(in->suspension_volume_ml) || in->suspension_volume_ml <= 0.0)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "suspension volume %g mL must be positive",
+                            in->suspension_volume_ml);
+    const double a = sg_hydrometer_concentration_factor(in->scale, in->particle_density_mg_m3);
+    if (!isfinite(a))
+        return sg_error_set(err, SG_EINVAL, 0, 0, "particle density %g Mg/m3 must be greater than 1",
+                            in->particle_density_mg_m3);
+
+    double rho_w = 0.0, eta = 0.0;
+    enum sg_status st = sg_water_properties(in->temp_c, &rho_w, &eta, err);
+    if (st != SG_OK)
+        return st;
+
+    out->corrected_reading = in->reading - in->blank_reading;
+    out->depth_reading = in->reading + in->meniscus_correction;
+    out->effective_depth_mm = in->depth_at_zero_mm + in->depth_per_unit_mm * out->depth_reading;
+    if (!(out->effective_depth_mm > 0.0))
+        return sg_error_set(err, SG_EINVAL, 0, 0,
+                            "effective depth %.4g mm at reading %g is not positive (check the depth "
+                            "line and the reading scale)",
+                            out->effective_depth_mm, out->depth_reading);
+    out->concentration_g_l = out->corrected_reading * a;
+    out->percent_specimen =
+        100.0 * out->concentration_g_l * (in->suspension_volume_ml / 1000.0) / in->specimen_dry_mass_g;
+    out->water_density_kg_m3 = rho_w;
+    out->viscosity_pa_s = eta;
+    out->density_diff_kg_m3 =
+        sg_stokes_density_diff_kg_m3(in->standard, in->particle_density_mg_m3, in->temp_c);
+
+    double d_m = 0.0;
+    st = sg_stokes_diameter_m(eta, out->effective_depth_mm / 1000.0, out->density_diff_kg_m3,
+                              in->elapsed_min * 60.0, &d_m, err);
+    if (st != SG_OK)
+        return st;
+    out->diameter_mm = d_m * 1000.0;
+    const double v = sg_stokes_velocity_m_s(eta, out->density_diff_kg_m3, d_m);
+    out->velocity_mm_s = v * 1000.0;
+    out->reynolds = sg_stokes_reynolds(rho_w, v, d_m, eta);
+    return SG_OK;
+}

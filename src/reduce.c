@@ -1,0 +1,316 @@
+/* reduce.c - the reduction pipeline: sieve -> sedimentation -> splice ->
+ * curve -> summary -> QC. The only copy of the pipeline (SPEC, ARCHITECTURE). */
+#include "sedgrade/reduce.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "sedgrade/classify.h"
+#include "sedgrade/hydrometer.h"
+#include "sedgrade/pipette.h"
+#include "sedgrade/sieve.h"
+
+struct sg_reduce_options sg_reduce_options_default(void)
+{
+    struct sg_reduce_options o;
+    memset(&o, 0, sizeof o);
+    o.interp = SG_INTERP_LOGLINEAR;
+    o.qc = sg_qc_limits_default();
+    return o;
+}
+
+void sg_constants_from_record(const struct sg_record *rec, struct sg_constants *k)
+{
+    memset(k, 0, sizeof *k);
+    if (rec->has_depth_line) {
+        k->has_depth_line = true;
+        k->depth_at_zero_mm = rec->depth_line_mm[0];
+        k->depth_per_unit_mm = rec->depth_line_mm[1];
+    }
+    k->meniscus_correction = rec->has_meniscus ? rec->meniscus_correction : 0.0;
+    if (rec->has_composite) {
+        k->has_blank_const = true;
+        k->blank_const = rec->composite_correction;
+    }
+    if (rec->has_pipette_volume) {
+        k->has_pipette_volume = true;
+        k->pipette_volume_ml = rec->pipette_volume_ml;
+    }
+    (void)snprintf(k->calibration_used, sizeof k->calibration_used, "inline");
+}
+
+/* Locates err at pos (the message was written without a location). */
+static enum sg_status locate(struct sg_error *err, enum sg_status st, struct sg_srcpos pos)
+{
+    if (err != NULL && err->line == 0) {
+        err->line = pos.line;
+        err->col = pos.col;
+    }
+    return st;
+}
+
+static enum sg_status add_sieve_points(const struct sg_sieve_row *rows, size_t n, double mass_g,
+                                       double scale_pct, enum sg_source src, struct sg_result *res,
+                                       struct sg_error *err)
+{
+    if (n == 0)
+        return SG_OK;
+    struct sg_sieve_line *lines = malloc(n * sizeof *lines);
+    if (lines == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory reducing %zu sieve rows", n);
+    enum sg_status st = sg_sieve_reduce(rows, n, mass_g, lines, err);
+    for (size_t i = 0; st == SG_OK && i < n; i++) {
+        if (lines[i].aperture_mm <= SG_SIEVE_PAN_MM)
+            continue;
+        struct sg_point p = sg_point_blank(src, lines[i].line);
+        p.diameter_mm = lines[i].aperture_mm;
+        p.retained_g = lines[i].retained_g;
+        p.cumulative_retained_g = lines[i].cumulative_retained_g;
+        p.percent_specimen = lines[i].percent_passing;
+        p.percent_finer = lines[i].percent_passing * scale_pct / 100.0;
+        p.on_curve = true;
+        st = sg_result_add_point(res, &p);
+    }
+    free(lines);
+    return st;
+}
+
+/* Blank (composite) reading for a hydrometer row: the row's own, else the
+ * register's line in temperature (no extrapolation), else the record's constant. */
+static enum sg_status blank_for(const struct sg_reading_row *r, double temp_c, const struct sg_constants *k,
+                                double *blank, struct sg_error *err)
+{
+    if (r->has_blank) {
+        *blank = r->blank_reading;
+        return SG_OK;
+    }
+    if (k->has_blank_line) {
+        if (temp_c < k->blank_tmin_c || temp_c > k->blank_tmax_c)
+            return sg_error_set(err, SG_EDOM, r->pos.line, r->pos.col,
+                                "temperature %g C is outside %g-%g C, the range over which the blank "
+                                "(composite) reading was calibrated (extend the calibration or give the "
+                                "blank reading as the row's fifth field)",
+                                temp_c, k->blank_tmin_c, k->blank_tmax_c);
+        *blank = k->blank_c0 + k->blank_c1 * temp_c;
+        return SG_OK;
+    }
+    if (k->has_blank_const) {
+        *blank = k->blank_const;
+        return SG_OK;
+    }
+    return sg_error_set(err, SG_EINVAL, r->pos.line, r->pos.col,
+                        "no blank (composite) reading for this reading (give it as the row's fifth field, "
+                        "as 'test,composite_correction,<reading>', or in the hydrometer's register entry)");
+}
+
+static enum sg_status add_hydrometer_points(const struct sg_record *rec, const struct sg_constants *k,
+                                            double scale_pct, struct sg_result *res, struct sg_error *err)
+{
+    if (!k->has_depth_line)
+        return sg_error_set(err, SG_EINVAL, rec->pos_hydrometer.line ? rec->pos_hydrometer.line : 1, 1,
+                            "no effective-depth line for hydrometer '%s' (calibrate it in the register "
+                            "or give 'test,depth_line_mm,<depth at 0>,<change per unit>')",
+                            rec->hydrometer);
+    for (size_t i = 0; i < rec->n_readings; i++) {
+        const struct sg_reading_row *r = &rec->readings[i];
+        const double temp_c = r->temp_c + k->thermometer_offset_c;
+        struct sg_hydrometer_input in = {
+            .scale = rec->scale,
+            .standard = rec->standard,
+            .reading = r->reading,
+            .meniscus_correction = k->meniscus_correction,
+            .depth_at_zero_mm = k->depth_at_zero_mm,
+            .depth_per_unit_mm = k->depth_per_unit_mm,
+            .temp_c = temp_c,
+            .elapsed_min = r->elapsed_min,
+            .particle_density_mg_m3 = rec->particle_density_mg_m3,
+            .specimen_dry_mass_g = rec->specimen_dry_mass_g,
+            .suspension_volume_ml = rec->suspension_volume_ml,
+        };
+        enum sg_status st = blank_for(r, temp_c, k, &in.blank_reading, err);
+        if (st != SG_OK)
+            return st;
+        struct sg_hydrometer_point hp;
+        st = sg_hydrometer_reduce(&in, &hp, err);
+        if (st != SG_OK)
+            return locate(err, st, r->pos);
+        struct sg_point p = sg_point_blank(SG_SOURCE_HYDROMETER, r->pos.line);
+        p.elapsed_min = r->elapsed_min;
+        p.temp_c = temp_c;
+        p.reading = r->reading;
+        p.blank_reading = in.blank_reading;
+        p.corrected_reading = hp.corrected_reading;
+        p.depth_reading = hp.depth_reading;
+        p.effective_depth_mm = hp.effective_depth_mm;
+        p.concentration_g_l = hp.concentration_g_l;
+        p.water_density_kg_m3 = hp.water_density_kg_m3;
+        p.viscosity_mpa_s = hp.viscosity_pa_s * 1000.0;
+        p.reynolds = hp.reynolds;
+        p.diameter_mm = hp.diameter_mm;
+        p.percent_specimen = hp.percent_specimen;
+        p.percent_finer = hp.percent_specimen * scale_pct / 100.0;
+        p.on_curve = true;
+        if ((st = sg_result_add_point(res, &p)) != SG_OK)
+            return sg_error_set(err, st, 0, 0, "out of memory");
+    }
+    return SG_OK;
+}
+
+static enum sg_status add_pipette_points(const struct sg_record *rec, const struct sg_constants *k,
+                                         double scale_pct, struct sg_result *res, struct sg_error *err)
+{
+    if (!k->has_pipette_volume)
+        return sg_error_set(err, SG_EINVAL, rec->pos_pipette_id.line ? rec->pos_pipette_id.line : 1, 1,
+                            "no pipette volume for pipette '%s' (calibrate it in the register or give "
+                            "'test,pipette_volume_ml,<mL>')",
+                            rec->pipette_id);
+    for (size_t i = 0; i < rec->n_pipettes; i++) {
+        const struct sg_pipette_row *r = &rec->pipettes[i];
+        const double temp_c = r->temp_c + k->thermometer_offset_c;
+        const struct sg_pipette_input in = {
+            .standard = rec->standard,
+            .elapsed_min = r->elapsed_min,
+            .temp_c = temp_c,
+            .depth_mm = r->depth_mm,
+            .solids_g = r->solids_g,
+            .pipette_volume_ml = k->pipette_volume_ml,
+            .suspension_volume_ml = rec->suspension_volume_ml,
+            .dispersant_mass_g = rec->has_dispersant ? rec->dispersant_mass_g : 0.0,
+            .particle_density_mg_m3 = rec->particle_density_mg_m3,
+            .specimen_dry_mass_g = rec->specimen_dry_mass_g,
+        };
+        struct sg_pipette_point pp;
+        enum sg_status st = sg_pipette_reduce(&in, &pp, err);
+        if (st != SG_OK)
+            return locate(err, st, r->pos);
+        struct sg_point p = sg_point_blank(SG_SOURCE_PIPETTE, r->pos.line);
+        p.elapsed_min = r->elapsed_min;
+        p.temp_c = temp_c;
+        p.effective_depth_mm = r->depth_mm;
+        p.solids_g = r->solids_g;
+        p.net_solids_g = pp.net_solids_g;
+        p.water_density_kg_m3 = pp.water_density_kg_m3;
+        p.viscosity_mpa_s = pp.viscosity_pa_s * 1000.0;
+        p.reynolds = pp.reynolds;
+        p.diameter_mm = pp.diameter_mm;
+        p.percent_specimen = pp.percent_specimen;
+        p.percent_finer = pp.percent_specimen * scale_pct / 100.0;
+        p.on_curve = true;
+        if ((st = sg_result_add_point(res, &p)) != SG_OK)
+            return sg_error_set(err, st, 0, 0, "out of memory");
+    }
+    return SG_OK;
+}
+
+/* Sedimentation points coarser than the finest sieve are outside the Stokes
+ * range and are kept off the curve (METHODS.md 6.2). */
+static void mark_coarser_than_sieve(struct sg_result *res)
+{
+    double finest = INFINITY;
+    for (size_t i = 0; i < res->n_points; i++) {
+        const struct sg_point *p = &res->points[i];
+        if ((p->source == SG_SOURCE_SIEVE || p->source == SG_SOURCE_FINE_SIEVE) && p->diameter_mm < finest)
+            finest = p->diameter_mm;
+    }
+    for (size_t i = 0; i < res->n_points; i++) {
+        struct sg_point *p = &res->points[i];
+        if ((p->source == SG_SOURCE_HYDROMETER || p->source == SG_SOURCE_PIPETTE) && p->diameter_mm >= finest) {
+            p->flags |= SG_PF_COARSER_THAN_SIEVE;
+            p->on_curve = false;
+        }
+    }
+}
+
+static enum sg_status build_curve(const struct sg_reduce_options *opt, struct sg_result *res,
+                                  struct sg_error *err)
+{
+    struct sg_curve_point *cp = malloc((res->n_points ? res->n_points : 1) * sizeof *cp);
+    if (cp == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building the curve");
+    size_t n = 0;
+    for (size_t i = 0; i < res->n_points; i++) {
+        const struct sg_point *p = &res->points[i];
+        if (!p->on_curve)
+            continue;
+        cp[n].diameter_mm = p->diameter_mm;
+        cp[n].percent_finer = p->percent_finer;
+        cp[n].rank = p->source == SG_SOURCE_SIEVE ? 0 : p->source == SG_SOURCE_FINE_SIEVE ? 1 : 2;
+        n++;
+    }
+    struct sg_error cerr;
+    sg_error_clear(&cerr);
+    enum sg_status st = sg_curve_build(&res->curve, cp, n, opt->interp, &cerr);
+    free(cp);
+    if (st == SG_EDOM) {
+        /* Too few points for a curve: results are still the points; the
+         * summary says why each quantity is not determined. */
+        (void)sg_result_add_flag(res, "curve", SG_SEVERITY_WARNING, 0, "%s", cerr.msg);
+        return SG_OK;
+    }
+    if (st != SG_OK && err != NULL)
+        *err = cerr;
+    return st;
+}
+
+enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants *k,
+                         const struct sg_reduce_options *opt, struct sg_result *res, struct sg_error *err)
+{
+    struct sg_constants inline_k;
+    struct sg_reduce_options def_opt;
+    if (k == NULL) {
+        sg_constants_from_record(rec, &inline_k);
+        k = &inline_k;
+    }
+    if (opt == NULL) {
+        def_opt = sg_reduce_options_default();
+        opt = &def_opt;
+    }
+    sg_error_clear(err);
+    sg_result_clear(res);
+    (void)snprintf(res->id, sizeof res->id, "%s", rec->id);
+    (void)snprintf(res->calibration_used, sizeof res->calibration_used, "%s",
+                   k->calibration_used[0] ? k->calibration_used : "inline");
+
+    enum sg_status st = sg_record_validate(rec, NULL, err);
+    if (st != SG_OK)
+        return st;
+
+    double pp_split = 100.0;
+    if (rec->n_sieve > 0) {
+        pp_split = sg_sieve_percent_passing(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g,
+                                            rec->split_aperture_mm);
+        if ((st = add_sieve_points(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g, 100.0, SG_SOURCE_SIEVE,
+                                   res, err)) != SG_OK)
+            return st;
+    }
+    res->pp_split = pp_split;
+    if ((st = add_sieve_points(rec->fine_sieve, rec->n_fine_sieve, rec->specimen_dry_mass_g, pp_split,
+                               SG_SOURCE_FINE_SIEVE, res, err)) != SG_OK)
+        return st;
+    if (rec->method == SG_METHOD_HYDROMETER)
+        st = add_hydrometer_points(rec, k, pp_split, res, err);
+    else
+        st = add_pipette_points(rec, k, pp_split, res, err);
+    if (st != SG_OK)
+        return st;
+
+    mark_coarser_than_sieve(res);
+    if ((st = build_curve(opt, res, err)) != SG_OK)
+        return st;
+
+    if ((st = sg_result_add_value(res, "split_passing_pct", "%", pp_split,
+                                  "percent of the whole sample passing the split sieve")) != SG_OK)
+        return sg_error_set(err, st, 0, 0, "out of memory");
+    if ((st = sg_classify_summarise(&res->curve, rec, opt, res, err)) != SG_OK)
+        return st;
+    if ((st = sg_result_add_text(res, "calibration_used", res->calibration_used,
+                                 "register entries applied (instrument@date) or inline constants")) != SG_OK)
+        return sg_error_set(err, st, 0, 0, "out of memory");
+    for (size_t i = 0; i < k->n_notes && i < sizeof k->notes / sizeof k->notes[0]; i++)
+        if ((st = sg_result_add_flag(res, k->notes[i].name, k->notes[i].severity, 0, "%s",
+                                     k->notes[i].message)) != SG_OK)
+            return sg_error_set(err, st, 0, 0, "out of memory");
+    return sg_qc_evaluate(rec, k, &opt->qc, res, err);
+}

@@ -1,0 +1,185 @@
+/* result.c - the result container: points, quantities, flags. */
+#include "sedgrade/result.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+void sg_result_init(struct sg_result *r)
+{
+    memset(r, 0, sizeof *r);
+    sg_curve_init(&r->curve);
+    r->pp_split = NAN;
+}
+
+void sg_result_release(struct sg_result *r)
+{
+    if (r == NULL)
+        return;
+    free(r->points);
+    free(r->quantities);
+    free(r->flags);
+    sg_curve_release(&r->curve);
+    sg_result_init(r);
+}
+
+void sg_result_clear(struct sg_result *r)
+{
+    r->n_points = 0;
+    r->n_quantities = 0;
+    r->n_flags = 0;
+    r->id[0] = '\0';
+    r->calibration_used[0] = '\0';
+    r->pp_split = NAN;
+    sg_curve_release(&r->curve);
+}
+
+static enum sg_status grow(void **items, size_t n, size_t *cap, size_t size)
+{
+    if (n < *cap)
+        return SG_OK;
+    size_t ncap = *cap ? 2 * *cap : 16;
+    void *p = realloc(*items, ncap * size);
+    if (p == NULL)
+        return SG_ENOMEM;
+    *items = p;
+    *cap = ncap;
+    return SG_OK;
+}
+
+enum sg_status sg_result_add_point(struct sg_result *r, const struct sg_point *p)
+{
+    void *items = r->points;
+    enum sg_status st = grow(&items, r->n_points, &r->cap_points, sizeof *p);
+    r->points = items;
+    if (st != SG_OK)
+        return st;
+    r->points[r->n_points++] = *p;
+    return SG_OK;
+}
+
+enum sg_status sg_result_add_flag(struct sg_result *r, const char *name, enum sg_severity sev, unsigned line,
+                                  const char *fmt, ...)
+{
+    void *items = r->flags;
+    enum sg_status st = grow(&items, r->n_flags, &r->cap_flags, sizeof *r->flags);
+    r->flags = items;
+    if (st != SG_OK)
+        return st;
+    struct sg_flag *f = &r->flags[r->n_flags++];
+    memset(f, 0, sizeof *f);
+    (void)snprintf(f->name, sizeof f->name, "%s", name);
+    f->severity = sev;
+    f->line = line;
+    va_list ap;
+    va_start(ap, fmt);
+    (void)vsnprintf(f->message, sizeof f->message, fmt, ap);
+    va_end(ap);
+    return SG_OK;
+}
+
+static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, const char *unit,
+                                        const char *note)
+{
+    void *items = r->quantities;
+    enum sg_status st = grow(&items, r->n_quantities, &r->cap_quantities, sizeof *r->quantities);
+    r->quantities = items;
+    if (st != SG_OK)
+        return NULL;
+    struct sg_quantity *q = &r->quantities[r->n_quantities++];
+    memset(q, 0, sizeof *q);
+    (void)snprintf(q->name, sizeof q->name, "%s", name);
+    (void)snprintf(q->unit, sizeof q->unit, "%s", unit ? unit : "");
+    (void)snprintf(q->note, sizeof q->note, "%s", note ? note : "");
+    q->value = NAN;
+    q->u = q->low95 = q->high95 = NAN;
+    return q;
+}
+
+enum sg_status sg_result_add_value(struct sg_result *r, const char *name, const char *unit, double value,
+                                   const char *note)
+{
+    struct sg_quantity *q = new_quantity(r, name, unit, note);
+    if (q == NULL)
+        return SG_ENOMEM;
+    q->determined = isfinite(value);
+    q->value = value;
+    return SG_OK;
+}
+
+enum sg_status sg_result_add_undetermined(struct sg_result *r, const char *name, const char *unit,
+                                          const char *note)
+{
+    struct sg_quantity *q = new_quantity(r, name, unit, note);
+    if (q == NULL)
+        return SG_ENOMEM;
+    q->determined = false;
+    return SG_OK;
+}
+
+enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const char *text, const char *note)
+{
+    struct sg_quantity *q = new_quantity(r, name, "", note);
+    if (q == NULL)
+        return SG_ENOMEM;
+    q->is_text = true;
+    q->determined = text != NULL && text[0] != '\0';
+    (void)snprintf(q->text, sizeof q->text, "%s", text ? text : "");
+    return SG_OK;
+}
+
+struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *name)
+{
+    for (size_t i = 0; i < r->n_quantities; i++)
+        if (strcmp(r->quantities[i].name, name) == 0)
+            return &r->quantities[i];
+    return NULL;
+}
+
+struct sg_point sg_point_blank(enum sg_source source, unsigned line)
+{
+    struct sg_point p;
+    memset(&p, 0, sizeof p);
+    p.source = source;
+    p.line = line;
+    p.diameter_mm = p.percent_finer = p.percent_specimen = NAN;
+    p.retained_g = p.cumulative_retained_g = NAN;
+    p.elapsed_min = p.temp_c = p.reading = p.blank_reading = p.corrected_reading = NAN;
+    p.depth_reading = p.effective_depth_mm = p.concentration_g_l = NAN;
+    p.solids_g = p.net_solids_g = NAN;
+    p.water_density_kg_m3 = p.viscosity_mpa_s = p.reynolds = NAN;
+    p.percent_finer_u = NAN;
+    return p;
+}
+
+enum sg_severity sg_result_worst(const struct sg_result *r)
+{
+    enum sg_severity w = SG_SEVERITY_INFO;
+    for (size_t i = 0; i < r->n_flags; i++)
+        if (r->flags[i].severity > w)
+            w = r->flags[i].severity;
+    return w;
+}
+
+const char *sg_source_name(enum sg_source s)
+{
+    switch (s) {
+    case SG_SOURCE_SIEVE: return "sieve";
+    case SG_SOURCE_FINE_SIEVE: return "fine_sieve";
+    case SG_SOURCE_HYDROMETER: return "hydrometer";
+    case SG_SOURCE_PIPETTE: return "pipette";
+    }
+    return "";
+}
+
+const char *sg_severity_name(enum sg_severity s)
+{
+    switch (s) {
+    case SG_SEVERITY_INFO: return "info";
+    case SG_SEVERITY_WARNING: return "warning";
+    case SG_SEVERITY_FAILURE: return "failure";
+    }
+    return "";
+}
