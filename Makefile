@@ -36,28 +36,36 @@ PROG     := $(BUILD)/sedgrade
 .PHONY: all test check leakcheck lint format demo bench install clean fuzz
 all: $(PROG)
 
+# V=1 shows the full commands.
+V ?= 0
+ifeq ($(V),0)
+Q := @
+endif
+
 $(BUILD)/%.o: %.c
 	@mkdir -p $(dir $@)
-	$(CC) $(CFLAGS) -c $< -o $@
+	@$(if $(Q),echo "  CC  $<")
+	$(Q)$(CC) $(CFLAGS) -c $< -o $@
 
 $(LIB): $(LIB_OBJ)
 	@mkdir -p $(dir $@)
-	rm -f $@
-	ar rcs $@ $^
+	$(Q)rm -f $@
+	$(Q)ar rcs $@ $^
 
 $(PROG): $(CLI_OBJ) $(LIB)
-	$(CC) $(LDFLAGS) -o $@ $(CLI_OBJ) $(LIB) $(LDLIBS)
+	$(Q)$(CC) $(LDFLAGS) -o $@ $(CLI_OBJ) $(LIB) $(LDLIBS)
 
 # Tests: one Criterion program per module. The classic assert macros are used
 # so -Wconversion stays off for tests (TOOLCHAIN.md).
 $(BUILD)/tests/%: tests/%.c $(LIB)
 	@mkdir -p $(dir $@)
-	$(CC) $(CFLAGS) -DSG_SOURCE_DIR='"$(CURDIR)"' $< -o $@ $(LIB) $(LDFLAGS) $(LDLIBS) \
+	@$(if $(Q),echo "  CC  $<")
+	$(Q)$(CC) $(CFLAGS) -DSG_SOURCE_DIR='"$(CURDIR)"' $< -o $@ $(LIB) $(LDFLAGS) $(LDLIBS) \
 	    $(shell pkg-config --libs criterion)
 
 $(BUILD)/bench/%: bench/%.c $(LIB)
 	@mkdir -p $(dir $@)
-	$(CC) $(CFLAGS) $< -o $@ $(LIB) $(LDFLAGS) $(LDLIBS)
+	$(Q)$(CC) $(CFLAGS) $< -o $@ $(LIB) $(LDFLAGS) $(LDLIBS)
 
 # make test: every module's Criterion tests, then the golden CLI cases.
 test: $(TEST_BIN) $(PROG)
@@ -97,4 +105,4 @@ install: $(PROG)
 clean:
 	rm -rf build build-san
 
--include $(LIB_OBJ:.o=.d) $(CLI_OBJ:.o=.d)
+-include $(LIB_OBJ:.o=.d) $(CLI_OBJ:.o=.d) $(TEST_BIN:=.d)

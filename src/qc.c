@@ -2,10 +2,47 @@
 #include "sedgrade/qc.h"
 
 #include <math.h>
+#include <stdio.h>
 
 #include "sedgrade/record.h"
 #include "sedgrade/reduce.h"
 #include "sedgrade/result.h"
+
+const char *sg_qc_point_flag_name(enum sg_point_flag bit)
+{
+    switch (bit) {
+    case SG_PF_REYNOLDS: return "reynolds";
+    case SG_PF_BROWNIAN: return "brownian";
+    case SG_PF_COARSER_THAN_SIEVE: return "coarser_than_sieve";
+    case SG_PF_CONCENTRATION: return "concentration";
+    case SG_PF_NOT_FALLING: return "not_falling";
+    case SG_PF_TEMP_RANGE: return "temperature_range";
+    case SG_PF_TEMP_DRIFT: return "temperature_drift";
+    case SG_PF_OFF_SCALE: return "off_scale";
+    case SG_PF_OVER_100: return "over_100";
+    case SG_PF_NEGATIVE: return "negative";
+    case SG_PF_NON_MONOTONE: return "non_monotone";
+    case SG_PF_BLANK_EXTRAPOLATED: return "blank_extrapolated";
+    }
+    return "";
+}
+
+void sg_qc_point_flags_format(unsigned flags, char *buf, size_t size)
+{
+    if (size == 0)
+        return;
+    buf[0] = '\0';
+    size_t used = 0;
+    for (unsigned bit = 1; bit != 0 && bit <= flags; bit <<= 1) {
+        if (!(flags & bit))
+            continue;
+        const char *name = sg_qc_point_flag_name((enum sg_point_flag)bit);
+        const int n = snprintf(buf + used, size - used, "%s%s", used ? "|" : "", name);
+        if (n < 0 || (size_t)n >= size - used)
+            break;
+        used += (size_t)n;
+    }
+}
 
 struct sg_qc_limits sg_qc_limits_default(void)
 {

@@ -4,6 +4,7 @@
 #define SEDGRADE_QC_H
 
 #include <stdbool.h>
+#include <stddef.h>
 
 #include "sedgrade/error.h"
 
@@ -43,6 +44,13 @@ struct sg_qc_limits {
     double mass_balance_max_pct;    /* 1.0 % sieve loss/gain (EN 933-1 style, from memory) */
     bool strict;                    /* warnings count as failures */
 };
+
+/* Short name of one point flag bit ("reynolds", "brownian", ...); "" if unknown. */
+const char *sg_qc_point_flag_name(enum sg_point_flag bit);
+
+/* Writes the names of all bits set in flags into buf, separated by '|'
+ * ("" when none). Truncates to size. */
+void sg_qc_point_flags_format(unsigned flags, char *buf, size_t size);
 
 /* The documented defaults above. */
 struct sg_qc_limits sg_qc_limits_default(void);

@@ -1,0 +1,164 @@
+/* csvout.c - CSV writers for reduction results. */
+#include "sedgrade/csvout.h"
+
+#include <csv.h>
+#include <errno.h>
+#include <math.h>
+#include <string.h>
+
+#include "sedgrade/qc.h"
+
+void sg_csvout_number(double x, char *buf, size_t size)
+{
+    if (!isfinite(x)) {
+        buf[0] = '\0';
+        return;
+    }
+    if (x == 0.0)
+        x = 0.0; /* no "-0" */
+    (void)snprintf(buf, size, "%.6g", x);
+}
+
+/* Writes one field, quoted when needed, with a separator before it unless first. */
+static void field(FILE *fp, const char *s, bool first)
+{
+    if (!first)
+        (void)fputc(',', fp);
+    if (strpbrk(s, ",\"\r\n") != NULL)
+        (void)csv_fwrite(fp, s, strlen(s));
+    else
+        (void)fputs(s, fp);
+}
+
+static void num(FILE *fp, double x, bool first)
+{
+    char buf[32];
+    sg_csvout_number(x, buf, sizeof buf);
+    field(fp, buf, first);
+}
+
+static enum sg_status finish(FILE *fp, struct sg_error *err)
+{
+    if (ferror(fp))
+        return sg_error_set(err, SG_EIO, 0, 0, "write failed: %s", strerror(errno ? errno : EIO));
+    return SG_OK;
+}
+
+enum sg_status sg_csvout_points(FILE *fp, const struct sg_result *res, bool with_u, struct sg_error *err)
+{
+    static const char *const head[] = {
+        "source", "line", "diameter_mm", "percent_finer", "percent_specimen", "elapsed_min", "temp_c",
+        "reading", "blank_reading", "corrected_reading", "depth_reading", "effective_depth_mm",
+        "concentration_g_l", "solids_g", "net_solids_g", "water_density_kg_m3", "viscosity_mpa_s",
+        "reynolds", "retained_g", "cumulative_retained_g", "on_curve", "flags"};
+    for (size_t i = 0; i < sizeof head / sizeof head[0]; i++)
+        field(fp, head[i], i == 0);
+    if (with_u)
+        field(fp, "percent_finer_u", false);
+    (void)fputc('\n', fp);
+    for (size_t i = 0; i < res->n_points; i++) {
+        const struct sg_point *p = &res->points[i];
+        char line[16], flags[256];
+        (void)snprintf(line, sizeof line, "%u", p->line);
+        sg_qc_point_flags_format(p->flags, flags, sizeof flags);
+        field(fp, sg_source_name(p->source), true);
+        field(fp, line, false);
+        const double v[] = {p->diameter_mm, p->percent_finer, p->percent_specimen, p->elapsed_min, p->temp_c,
+                            p->reading, p->blank_reading, p->corrected_reading, p->depth_reading,
+                            p->effective_depth_mm, p->concentration_g_l, p->solids_g, p->net_solids_g,
+                            p->water_density_kg_m3, p->viscosity_mpa_s, p->reynolds, p->retained_g,
+                            p->cumulative_retained_g};
+        for (size_t j = 0; j < sizeof v / sizeof v[0]; j++)
+            num(fp, v[j], false);
+        field(fp, p->on_curve ? "yes" : "no", false);
+        field(fp, flags, false);
+        if (with_u)
+            num(fp, p->percent_finer_u, false);
+        (void)fputc('\n', fp);
+    }
+    return finish(fp, err);
+}
+
+static void quantity_value(const struct sg_quantity *q, char *buf, size_t size)
+{
+    if (!q->determined)
+        buf[0] = '\0';
+    else if (q->is_text)
+        (void)snprintf(buf, size, "%s", q->text);
+    else
+        sg_csvout_number(q->value, buf, size);
+}
+
+enum sg_status sg_csvout_summary(FILE *fp, const struct sg_result *res, bool with_u, struct sg_error *err)
+{
+    (void)fputs(with_u ? "quantity,value,unit,note,u,low95,high95\n" : "quantity,value,unit,note\n", fp);
+    for (size_t i = 0; i < res->n_quantities; i++) {
+        const struct sg_quantity *q = &res->quantities[i];
+        char value[SG_QTEXT_MAX];
+        quantity_value(q, value, sizeof value);
+        field(fp, q->name, true);
+        field(fp, value, false);
+        field(fp, q->unit, false);
+        field(fp, q->note, false);
+        if (with_u) {
+            num(fp, q->has_u ? q->u : (double)NAN, false);
+            num(fp, q->has_u ? q->low95 : (double)NAN, false);
+            num(fp, q->has_u ? q->high95 : (double)NAN, false);
+        }
+        (void)fputc('\n', fp);
+    }
+    return finish(fp, err);
+}
+
+enum sg_status sg_csvout_curve(FILE *fp, const struct sg_result *res, unsigned per_decade,
+                               struct sg_error *err)
+{
+    (void)fputs("diameter_mm,percent_finer\n", fp);
+    const struct sg_curve *c = &res->curve;
+    if (c->n >= 2 && per_decade > 0) {
+        const double x0 = c->log10_d[0], x1 = c->log10_d[c->n - 1];
+        const double step = 1.0 / per_decade;
+        const size_t n = (size_t)ceil((x1 - x0) / step - 1e-9);
+        for (size_t i = 0; i <= n; i++) {
+            const double x = i == n ? x1 : x0 + (double)i * step;
+            const double d = pow(10.0, x);
+            double p = NAN;
+            if (sg_curve_percent_at(c, d, &p, NULL) != SG_OK)
+                continue;
+            num(fp, d, true);
+            num(fp, p, false);
+            (void)fputc('\n', fp);
+        }
+    }
+    return finish(fp, err);
+}
+
+enum sg_status sg_csvout_batch(FILE *fp, const struct sg_result *const *results, const char *const *status,
+                               size_t n, struct sg_error *err)
+{
+    /* The columns are the quantities of the first fully reduced result. */
+    const struct sg_result *model = NULL;
+    for (size_t i = 0; i < n && model == NULL; i++)
+        if (results[i] != NULL && results[i]->n_quantities > 0)
+            model = results[i];
+    field(fp, "id", true);
+    field(fp, "status", false);
+    for (size_t j = 0; model != NULL && j < model->n_quantities; j++)
+        field(fp, model->quantities[j].name, false);
+    (void)fputc('\n', fp);
+    for (size_t i = 0; i < n; i++) {
+        const struct sg_result *r = results[i];
+        field(fp, r ? r->id : "", true);
+        field(fp, status[i], false);
+        for (size_t j = 0; model != NULL && j < model->n_quantities; j++) {
+            char value[SG_QTEXT_MAX] = "";
+            const struct sg_quantity *q =
+                r && r->n_quantities ? sg_result_quantity(r, model->quantities[j].name) : NULL;
+            if (q != NULL)
+                quantity_value(q, value, sizeof value);
+            field(fp, value, false);
+        }
+        (void)fputc('\n', fp);
+    }
+    return finish(fp, err);
+}
