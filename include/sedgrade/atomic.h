@@ -12,13 +12,15 @@ struct sg_atomic_file {
     FILE *fp;          /* write here between open and commit */
     char path[4096];   /* final name */
     char tmp[4096];    /* temporary name in the same folder */
+    int durable;       /* set non-zero after open to fsync before the rename (register
+                          history); results skip it: a crash leaves the old file or none */
 };
 
 /* Creates a temporary file next to path and opens it for writing (fp).
  * SG_EIO with the path and the system's reason on failure. */
 enum sg_status sg_atomic_open(struct sg_atomic_file *f, const char *path, struct sg_error *err);
 
-/* Flushes, syncs and closes the temporary file and renames it to the final
+/* Flushes, (if durable) syncs and closes the temporary file and renames it to the final
  * name. On any failure (including an earlier write error on fp, e.g. a full
  * disk) the temporary file is removed, nothing is left at path that was not
  * there before, and SG_EIO is returned. */

@@ -44,7 +44,7 @@ enum sg_status sg_atomic_commit(struct sg_atomic_file *f, struct sg_error *err)
     int e = 0;
     if (ferror(f->fp) || fflush(f->fp) != 0)
         e = errno ? errno : EIO;
-    if (e == 0 && fsync(fileno(f->fp)) != 0 && errno != EINVAL)
+    if (e == 0 && f->durable && fsync(fileno(f->fp)) != 0 && errno != EINVAL)
         e = errno;
     if (fclose(f->fp) != 0 && e == 0)
         e = errno ? errno : EIO;
