@@ -1,5 +1,49 @@
 /* qc.h - named quality-control rules for a sedimentation run, each with a
- * documented, adjustable threshold. */
+ * documented, adjustable threshold.
+ *
+ * Rules (the flag name is what points.csv, the summary's qc_flags and the
+ * report show). Severity: info is shown only; a warning fails the run only
+ * with --strict; a failure fails it (exit 1, results still written).
+ *
+ *  name                 severity  default threshold (struct sg_qc_limits)        source
+ *  reynolds             warning   Re > 0.2 on a point on the curve (reynolds_max)  METHODS.md 2.6: IS 5282 summary 0.2,
+ *                                                                                 ISO 13317-4 0.25
+ *  brownian             warning   D < 0.0002 mm (diameter_min_mm)                   METHODS.md 2.6: ASTM D7928 scope
+ *  coarser_than_sieve   info      D >= finest sieve: kept off the curve (set by     METHODS.md 6.2, 6.3 #5
+ *                                 sg_reduce; QC names it)
+ *  concentration        warning   first reading > 50 g/L (concentration_max_g_l)   METHODS.md 2.6, 3.7 #7 (D422/D7928,
+ *                                                                                 from memory)
+ *  not_falling          failure   percent finer of a reading above that of an      METHODS.md 3.7 #3 (derived);
+ *                                 earlier reading by > 1.0 point                    tolerance common practice
+ *                                 (monotone_tolerance_pct)
+ *  temperature_range    warning   T < 15 C or T > 30 C (temp_min_c, temp_max_c)    common practice (D422 Table 3 K
+ *                                                                                 covers 16-30 C, METHODS.md 2.2)
+ *  temperature_drift    warning   |T - T(previous reading)| > 1.0 C                 METHODS.md 3.7 #2 (from memory;
+ *                                 (temp_drift_max_c)                                AS 1289 +-1 C)
+ *  off_scale            failure   reading outside the hydrometer's scale, when the  common practice: a value off the
+ *                                 register gives it (sg_constants has_scale_range)  graduation was not read
+ *  over_100             failure   percent finer (of the sample or of the specimen)  METHODS.md 3.7 #4 (derived);
+ *                                 > 100 + 1.0 (percent_tolerance)                   tolerance common practice
+ *  negative             failure   percent finer < -1.0 (percent_tolerance)          derived; tolerance common practice
+ *  non_monotone         failure   a curve point finer than another but with a      METHODS.md 6.3 #1 (practice)
+ *                                 percent finer higher by > 1.0 point
+ *                                 (monotone_tolerance_pct)
+ *  junction_gap         warning   |summary junction_gap_pct| > 5 points             METHODS.md 6.3 #2 (practice)
+ *                                 (junction_gap_max_pct)
+ *  mass_balance         warning   sieve rows with a pan: |sample mass - sum         METHODS.md 5.3 (EN 933-1 1 %,
+ *                                 retained incl. pan| > 1.0 % of the sample mass    from memory; ASTM C136 uses 0.3 %)
+ *                                 (mass_balance_max_pct); no pan: not checked
+ *                                 (the washed-out fines were not weighed)
+ *  calibration_overdue  (register) added by the calibration register code          METHODS.md 10.8
+ *  curve                warning   too few points for a curve (added by sg_reduce)
+ *
+ * Elapsed times that do not rise are refused by sg_record_validate() before
+ * any reduction, so they have no QC rule. Each rule adds at most one named
+ * flag (struct sg_flag) per run, located at the first line concerned and
+ * listing the others; the per-point bits below mark every point concerned.
+ * sg_qc_evaluate() also adds the summary quantities "sieve_loss_pct" (not
+ * determined without a pan), "qc_status" (ok / warning / failed) and
+ * "qc_flags" (the names of all flags of the run, '|' separated). */
 #ifndef SEDGRADE_QC_H
 #define SEDGRADE_QC_H
 
@@ -45,6 +89,25 @@ struct sg_qc_limits {
     bool strict;                    /* warnings count as failures */
 };
 
+/* One rule of the table above, for documentation, reports and tests. */
+struct sg_qc_rule {
+    const char *name;          /* flag name, e.g. "reynolds" */
+    enum sg_severity severity; /* severity of the flag it raises */
+    unsigned point_bit;        /* enum sg_point_flag bit it sets, 0 for run-level rules */
+    const char *threshold;     /* the default threshold in words */
+    const char *source;        /* where the rule and its default come from */
+};
+
+/* Number of rules in the table and rule i (NULL past the end). */
+size_t sg_qc_rule_count(void);
+const struct sg_qc_rule *sg_qc_rule_at(size_t i);
+/* The rule called name, or NULL. */
+const struct sg_qc_rule *sg_qc_rule_find(const char *name);
+
+/* Run status from the worst severity of its flags: "failed" for a failure
+ * (or a warning when strict), "warning" for a warning, else "ok". */
+const char *sg_qc_status_name(enum sg_severity worst, bool strict);
+
 /* Short name of one point flag bit ("reynolds", "brownian", ...); "" if unknown. */
 const char *sg_qc_point_flag_name(enum sg_point_flag bit);
 
@@ -60,8 +123,14 @@ struct sg_result;
 struct sg_constants;
 
 /* Applies every rule to a reduced result: sets point flag bits and adds named
- * flags (struct sg_flag) with their severity. Called by sg_reduce() after the
- * curve and summary are built. Returns SG_OK or SG_ENOMEM. */
+ * flags (struct sg_flag) with their severity, then the summary quantities
+ * sieve_loss_pct, qc_status and qc_flags. Called by sg_reduce() after the
+ * curve and summary are built (and after the register's notes were added as
+ * flags, so qc_status and qc_flags include them). rec may be NULL (no
+ * mass-balance check), k may be NULL (no scale-range check; no pipette
+ * concentration), lim may be NULL (defaults). Sedimentation points are
+ * taken in the order they were added (time order). Returns SG_OK, or
+ * SG_ENOMEM with err set (res then holds part of the flags). */
 enum sg_status sg_qc_evaluate(const struct sg_record *rec, const struct sg_constants *k,
                               const struct sg_qc_limits *lim, struct sg_result *res, struct sg_error *err);
 
