@@ -44,7 +44,7 @@ struct sg_point {
 };
 
 #define SG_QNAME_MAX 40
-#define SG_QTEXT_MAX 64
+#define SG_QTEXT_MAX 256 /* room for qc_flags, every QC flag name joined by '|' */
 #define SG_QNOTE_MAX 240
 
 /* One summary quantity (a row of <id>.summary.csv). */
