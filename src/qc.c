@@ -168,8 +168,8 @@ struct tally {
 static void tally_init(struct tally *t)
 {
     memset(t, 0, sizeof *t);
-    t->worst = t->worst_aux = NAN;
-    t->worst_excess = -INFINITY;
+    t->worst = t->worst_aux = (double)NAN;
+    t->worst_excess = -(double)INFINITY;
 }
 
 static void tally_add(struct tally *t, unsigned line, double value, double excess, double aux)
@@ -237,7 +237,7 @@ static enum sg_status rule_stokes_range(const struct sg_qc_limits *lim, struct s
     tally_init(&re);
     tally_init(&br);
     tally_init(&coarse);
-    double finest_sieve_mm = INFINITY;
+    double finest_sieve_mm = (double)INFINITY;
     for (size_t i = 0; i < res->n_points; i++) {
         struct sg_point *p = &res->points[i];
         if (!is_sedimentation(p)) {
@@ -323,8 +323,8 @@ static enum sg_status rule_readings(const struct sg_constants *k, const struct s
     tally_init(&range);
     tally_init(&drift);
     tally_init(&scale);
-    double min_pct = INFINITY; /* lowest percent of specimen of the earlier readings */
-    double prev_temp_c = NAN;
+    double min_pct = (double)INFINITY; /* lowest percent of specimen of the earlier readings */
+    double prev_temp_c = (double)NAN;
     const bool has_scale = k != NULL && k->has_scale_range;
     for (size_t i = 0; i < res->n_points; i++) {
         struct sg_point *p = &res->points[i];
@@ -470,12 +470,12 @@ static enum sg_status rule_monotone(const struct sg_qc_limits *lim, struct sg_re
     qsort(cp, n, sizeof *cp, by_diameter_desc);
     struct tally rise;
     tally_init(&rise);
-    double min_coarser = INFINITY;
+    double min_coarser = (double)INFINITY;
     for (size_t i = 0; i < n;) {
         size_t j = i; /* [i, j) share one diameter */
         while (j < n && cp[j].d_mm == cp[i].d_mm)
             j++;
-        double group_min = INFINITY;
+        double group_min = (double)INFINITY;
         for (size_t g = i; g < j; g++) {
             struct sg_point *p = &res->points[cp[g].index];
             if (isfinite(min_coarser) && above(cp[g].pct, min_coarser + lim->monotone_tolerance_pct)) {
