@@ -1,89 +1,363 @@
-/* curve.c - PLACEHOLDER (loglinear only); to be replaced by the full module. */
+/* curve.c - the grading curve: sorted, merged nodes on log10(D) and
+ * interpolation both ways, log-linear (METHODS.md 7.2) or GSL Steffen,
+ * never extrapolated. */
 #include "sedgrade/curve.h"
 
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
-void sg_curve_init(struct sg_curve *c) { memset(c, 0, sizeof *c); }
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_interp.h>
+#include <gsl/gsl_roots.h>
+
+/* Brent iterations before giving up; it converges in well under 100 on a
+ * monotone cubic segment (common practice). */
+#define ROOT_MAX_ITER 200
+/* Root tolerance in log10(D) units (2.3e-12 relative in D). */
+#define ROOT_TOL_LOG10_D 1e-12
+/* Steffen needs at least this many nodes (GSL documentation, gsl_interp_steffen). */
+#define STEFFEN_MIN_NODES 3
+
+struct curve_impl {
+    gsl_interp *interp;
+};
+
+void sg_curve_init(struct sg_curve *c)
+{
+    if (c == NULL)
+        return;
+    memset(c, 0, sizeof *c);
+    c->method = SG_INTERP_LOGLINEAR;
+}
 
 void sg_curve_release(struct sg_curve *c)
 {
     if (c == NULL)
         return;
+    struct curve_impl *im = c->impl;
+    if (im != NULL) {
+        gsl_interp_free(im->interp);
+        free(im);
+    }
     free(c->log10_d);
     free(c->percent);
     sg_curve_init(c);
 }
 
-static int cmp(const void *a, const void *b)
+/* A point with its input position, so equal diameters of equal rank keep
+ * the first in input order whatever qsort does. */
+struct sorted_point {
+    double log10_d;
+    double percent;
+    int rank;
+    size_t index;
+};
+
+static int by_size_rank_index(const void *a, const void *b)
 {
-    const struct sg_curve_point *x = a, *y = b;
-    if (x->diameter_mm != y->diameter_mm)
-        return (x->diameter_mm > y->diameter_mm) - (x->diameter_mm < y->diameter_mm);
-    return x->rank - y->rank;
+    const struct sorted_point *x = a, *y = b;
+    if (x->log10_d != y->log10_d)
+        return (x->log10_d > y->log10_d) - (x->log10_d < y->log10_d);
+    if (x->rank != y->rank)
+        return (x->rank > y->rank) - (x->rank < y->rank);
+    return (x->index > y->index) - (x->index < y->index);
+}
+
+static enum sg_status translate_gsl(int gsl_status, const char *what, struct sg_error *err)
+{
+    return sg_error_set(err, SG_ENUMERIC, 0, 0, "%s failed: %s (GSL status %d; check the curve's points)",
+                        what, gsl_strerror(gsl_status), gsl_status);
+}
+
+static enum sg_status prepare_steffen(struct sg_curve *c, struct sg_error *err)
+{
+    struct curve_impl *im = calloc(1, sizeof *im);
+    if (im == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory preparing the monotone interpolation");
+    im->interp = gsl_interp_alloc(gsl_interp_steffen, c->n);
+    if (im->interp == NULL) {
+        free(im);
+        return sg_error_set(err, SG_ENOMEM, 0, 0,
+                            "out of memory preparing the monotone interpolation of %zu points", c->n);
+    }
+    int gs = gsl_interp_init(im->interp, c->log10_d, c->percent, c->n);
+    if (gs != GSL_SUCCESS) {
+        gsl_interp_free(im->interp);
+        free(im);
+        return translate_gsl(gs, "monotone (Steffen) interpolation set-up", err);
+    }
+    c->impl = im;
+    return SG_OK;
 }
 
 enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *pts, size_t n,
                               enum sg_interp method, struct sg_error *err)
 {
     sg_curve_release(c);
-    struct sg_curve_point *s = malloc((n ? n : 1) * sizeof *s);
-    c->log10_d = malloc((n ? n : 1) * sizeof *c->log10_d);
-    c->percent = malloc((n ? n : 1) * sizeof *c->percent);
-    if (!s || !c->log10_d || !c->percent) {
-        free(s);
-        sg_curve_release(c);
-        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
-    }
-    if (n)
-        memcpy(s, pts, n * sizeof *s);
-    qsort(s, n, sizeof *s, cmp);
-    size_t m = 0;
+    if (pts == NULL && n > 0)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "no points given for %zu curve points", n);
+    if (method != SG_INTERP_LOGLINEAR && method != SG_INTERP_MONOTONE)
+        return sg_error_set(err, SG_EINVAL, 0, 0,
+                            "unknown interpolation method %d (use loglinear or monotone)", (int)method);
     for (size_t i = 0; i < n; i++) {
-        if (m > 0 && s[i].diameter_mm == pow(10.0, c->log10_d[m - 1]))
-            continue;
-        c->log10_d[m] = log10(s[i].diameter_mm);
-        c->percent[m] = s[i].percent_finer;
-        m++;
+        if (!isfinite(pts[i].diameter_mm) || pts[i].diameter_mm <= 0.0)
+            return sg_error_set(err, SG_EINVAL, 0, 0,
+                                "curve point %zu: diameter %g mm must be positive and finite", i + 1,
+                                pts[i].diameter_mm);
+        if (!isfinite(pts[i].percent_finer))
+            return sg_error_set(err, SG_EINVAL, 0, 0,
+                                "curve point %zu at %g mm: percent finer %g is not a number", i + 1,
+                                pts[i].diameter_mm, pts[i].percent_finer);
     }
-    free(s);
+    if (n < 2)
+        return sg_error_set(err, SG_EDOM, 0, 0,
+                            "%zu point%s on the curve: at least two sizes are needed to interpolate", n,
+                            n == 1 ? "" : "s");
+
+    enum sg_status st = SG_OK;
+    struct sorted_point *s = malloc(n * sizeof *s);
+    c->log10_d = malloc(n * sizeof *c->log10_d);
+    c->percent = malloc(n * sizeof *c->percent);
+    if (s == NULL || c->log10_d == NULL || c->percent == NULL) {
+        st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building a curve of %zu points", n);
+        goto cleanup;
+    }
+    for (size_t i = 0; i < n; i++)
+        s[i] = (struct sorted_point){log10(pts[i].diameter_mm), pts[i].percent_finer, pts[i].rank, i};
+    qsort(s, n, sizeof *s, by_size_rank_index);
+
+    /* A run of the same size (within SG_CURVE_SAME_LOG10_D of its first
+     * member) becomes one node: the member with the lowest rank, then the
+     * earliest in input order; the node sits at the run's first size. */
+    size_t m = 0;
+    for (size_t i = 0; i < n;) {
+        size_t best = i, j = i + 1;
+        for (; j < n && s[j].log10_d - s[i].log10_d <= SG_CURVE_SAME_LOG10_D; j++)
+            if (s[j].rank < s[best].rank || (s[j].rank == s[best].rank && s[j].index < s[best].index))
+                best = j;
+        c->log10_d[m] = s[i].log10_d;
+        c->percent[m] = s[best].percent;
+        m++;
+        i = j;
+    }
     c->n = m;
     c->method = method;
     if (m < 2) {
-        sg_curve_release(c);
-        return sg_error_set(err, SG_EDOM, 0, 0, "fewer than two points: no curve");
+        st = sg_error_set(err, SG_EDOM, 0, 0,
+                          "all %zu curve points are at one size (%g mm): at least two sizes are needed", n,
+                          pow(10.0, c->log10_d[0]));
+        goto cleanup;
     }
+    if (method == SG_INTERP_MONOTONE && m >= STEFFEN_MIN_NODES)
+        st = prepare_steffen(c, err);
+
+cleanup:
+    free(s);
+    if (st != SG_OK)
+        sg_curve_release(c);
+    return st;
+}
+
+/* Clamps x into [lo, hi] when it is outside by no more than round-off;
+ * returns false when it is really outside. */
+static int within_range(double *x, double lo, double hi)
+{
+    if (*x < lo && lo - *x <= SG_CURVE_SAME_LOG10_D)
+        *x = lo;
+    if (*x > hi && *x - hi <= SG_CURVE_SAME_LOG10_D)
+        *x = hi;
+    return *x >= lo && *x <= hi;
+}
+
+/* Index i (1..n-1) of the segment [x[i-1], x[i]] holding x, for x within range. */
+static size_t segment_of(const struct sg_curve *c, double x)
+{
+    size_t lo = 0, hi = c->n - 1;
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (c->log10_d[mid] <= x)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    return hi;
+}
+
+static double loglinear_percent(const struct sg_curve *c, size_t i, double x)
+{
+    const double x0 = c->log10_d[i - 1], x1 = c->log10_d[i];
+    const double p0 = c->percent[i - 1], p1 = c->percent[i];
+    if (x <= x0)
+        return p0;
+    if (x >= x1)
+        return p1;
+    return p0 + (p1 - p0) * (x - x0) / (x1 - x0);
+}
+
+static enum sg_status steffen_percent(const struct sg_curve *c, double x, double *percent, struct sg_error *err)
+{
+    const struct curve_impl *im = c->impl;
+    gsl_interp_accel acc = {0, 0, 0};
+    int gs = gsl_interp_eval_e(im->interp, c->log10_d, c->percent, x, &acc, percent);
+    if (gs != GSL_SUCCESS)
+        return translate_gsl(gs, "monotone (Steffen) interpolation", err);
     return SG_OK;
 }
 
 enum sg_status sg_curve_percent_at(const struct sg_curve *c, double d_mm, double *percent,
                                    struct sg_error *err)
 {
-    if (c->n < 2)
-        return sg_error_set(err, SG_EDOM, 0, 0, "no curve");
+    if (c == NULL || c->n < 2 || c->log10_d == NULL || c->percent == NULL)
+        return sg_error_set(err, SG_EDOM, 0, 0, "no grading curve (fewer than two sizes measured)");
+    if (percent == NULL)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "no place to store the percent finer");
+    if (!isfinite(d_mm) || d_mm <= 0.0)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "diameter %g mm must be positive and finite", d_mm);
+    const size_t last = c->n - 1;
     double x = log10(d_mm);
-    if (x < c->log10_d[0] || x > c->log10_d[c->n - 1])
-        return sg_error_set(err, SG_EDOM, 0, 0, "outside the measured range");
-    for (size_t i = 1; i < c->n; i++)
-        if (x <= c->log10_d[i]) {
-            double f = (x - c->log10_d[i - 1]) / (c->log10_d[i] - c->log10_d[i - 1]);
-            *percent = c->percent[i - 1] + f * (c->percent[i] - c->percent[i - 1]);
+    if (!within_range(&x, c->log10_d[0], c->log10_d[last])) {
+        if (x > c->log10_d[last]) {
+            if (fabs(c->percent[last] - 100.0) <= SG_CURVE_END_TOL_PCT) {
+                *percent = 100.0;
+                return SG_OK;
+            }
+            return sg_error_set(err, SG_EDOM, 0, 0,
+                                "%g mm is coarser than the coarsest point %g mm (%g %% finer there, not 100 %%; "
+                                "the curve is not extrapolated)",
+                                d_mm, pow(10.0, c->log10_d[last]), c->percent[last]);
+        }
+        if (fabs(c->percent[0]) <= SG_CURVE_END_TOL_PCT) {
+            *percent = 0.0;
             return SG_OK;
         }
-    *percent = c->percent[c->n - 1];
+        return sg_error_set(err, SG_EDOM, 0, 0,
+                            "%g mm is finer than the finest point %g mm (%g %% finer there; the curve is not "
+                            "extrapolated)",
+                            d_mm, pow(10.0, c->log10_d[0]), c->percent[0]);
+    }
+    if (c->impl != NULL)
+        return steffen_percent(c, x, percent, err);
+    *percent = loglinear_percent(c, segment_of(c, x), x);
     return SG_OK;
+}
+
+struct root_params {
+    const struct sg_curve *c;
+    double target;
+};
+
+/* Steffen interpolant minus the target percent; NaN (which Brent reports
+ * as GSL_EBADFUNC) if GSL cannot evaluate. */
+static double steffen_minus_target(double x, void *params)
+{
+    const struct root_params *rp = params;
+    const struct curve_impl *im = rp->c->impl;
+    gsl_interp_accel acc = {0, 0, 0};
+    double y;
+    if (gsl_interp_eval_e(im->interp, rp->c->log10_d, rp->c->percent, x, &acc, &y) != GSL_SUCCESS)
+        return NAN;
+    return y - rp->target;
+}
+
+/* log10(D) in segment i (P[i-1] < p < P[i]) where the Steffen interpolant equals p. */
+static enum sg_status steffen_solve(const struct sg_curve *c, size_t i, double p, double *x,
+                                    struct sg_error *err)
+{
+    struct root_params rp = {c, p};
+    gsl_function f = {steffen_minus_target, &rp};
+    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
+    if (s == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory for the root finder");
+    enum sg_status st = SG_OK;
+    int gs = gsl_root_fsolver_set(s, &f, c->log10_d[i - 1], c->log10_d[i]);
+    if (gs != GSL_SUCCESS) {
+        st = translate_gsl(gs, "bracketing the size on the monotone curve", err);
+        goto cleanup;
+    }
+    for (int iter = 0; iter < ROOT_MAX_ITER; iter++) {
+        gs = gsl_root_fsolver_iterate(s);
+        if (gs != GSL_SUCCESS) {
+            st = translate_gsl(gs, "finding the size on the monotone curve", err);
+            goto cleanup;
+        }
+        gs = gsl_root_test_interval(gsl_root_fsolver_x_lower(s), gsl_root_fsolver_x_upper(s),
+                                    ROOT_TOL_LOG10_D, 0.0);
+        if (gs == GSL_SUCCESS) {
+            *x = gsl_root_fsolver_root(s);
+            goto cleanup;
+        }
+        if (gs != GSL_CONTINUE) {
+            st = translate_gsl(gs, "testing convergence on the monotone curve", err);
+            goto cleanup;
+        }
+    }
+    st = sg_error_set(err, SG_ENUMERIC, 0, 0,
+                      "finding the size at %g %% finer did not converge in %d iterations (report this curve)",
+                      p, ROOT_MAX_ITER);
+cleanup:
+    gsl_root_fsolver_free(s);
+    return st;
+}
+
+/* The message for a percent the curve never reaches. */
+static enum sg_status not_reached(const struct sg_curve *c, double p, struct sg_error *err)
+{
+    const size_t last = c->n - 1;
+    double pmin = c->percent[0], pmax = c->percent[0];
+    for (size_t i = 1; i < c->n; i++) {
+        pmin = fmin(pmin, c->percent[i]);
+        pmax = fmax(pmax, c->percent[i]);
+    }
+    if (p < pmin && pmin == c->percent[0])
+        return sg_error_set(err, SG_EDOM, 0, 0,
+                            "%g %% finer is below the finest point (%g %% finer at %g mm); the curve is not "
+                            "extrapolated",
+                            p, c->percent[0], pow(10.0, c->log10_d[0]));
+    if (p > pmax && pmax == c->percent[last])
+        return sg_error_set(err, SG_EDOM, 0, 0,
+                            "%g %% finer is above the coarsest point (%g %% finer at %g mm); the curve is not "
+                            "extrapolated",
+                            p, c->percent[last], pow(10.0, c->log10_d[last]));
+    return sg_error_set(err, SG_EDOM, 0, 0,
+                        "%g %% finer is outside the %g-%g %% finer the curve reaches between %g and %g mm; the "
+                        "curve is not extrapolated",
+                        p, pmin, pmax, pow(10.0, c->log10_d[0]), pow(10.0, c->log10_d[last]));
 }
 
 enum sg_status sg_curve_diameter_at(const struct sg_curve *c, double p, double *d_mm, struct sg_error *err)
 {
-    for (size_t i = c->n; i-- > 1;) {
-        double pc = c->percent[i], pf = c->percent[i - 1];
-        if (pf < p && p <= pc) {
-            double x = c->log10_d[i - 1] + (p - pf) * (c->log10_d[i] - c->log10_d[i - 1]) / (pc - pf);
-            *d_mm = pow(10.0, x);
+    if (c == NULL || c->n < 2 || c->log10_d == NULL || c->percent == NULL)
+        return sg_error_set(err, SG_EDOM, 0, 0, "no grading curve (fewer than two sizes measured)");
+    if (d_mm == NULL)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "no place to store the diameter");
+    if (!isfinite(p))
+        return sg_error_set(err, SG_EINVAL, 0, 0, "percent finer %g is not a number", p);
+    /* scan from the coarse end: first rising segment with P_fine < p <= P_coarse */
+    for (size_t i = c->n - 1; i >= 1; i--) {
+        const double pf = c->percent[i - 1], pc = c->percent[i];
+        if (!(pf < p && p <= pc))
+            continue;
+        if (p == pc) {
+            *d_mm = pow(10.0, c->log10_d[i]);
             return SG_OK;
         }
+        double x = NAN;
+        if (c->impl != NULL) {
+            enum sg_status st = steffen_solve(c, i, p, &x, err);
+            if (st != SG_OK)
+                return st;
+        } else {
+            x = c->log10_d[i - 1] + (p - pf) * (c->log10_d[i] - c->log10_d[i - 1]) / (pc - pf);
+        }
+        *d_mm = pow(10.0, x);
+        return SG_OK;
     }
-    return sg_error_set(err, SG_EDOM, 0, 0, "not reached by the curve");
+    /* reached only at a node (the finest point or a local minimum) */
+    for (size_t i = c->n; i-- > 0;)
+        if (c->percent[i] == p) {
+            *d_mm = pow(10.0, c->log10_d[i]);
+            return SG_OK;
+        }
+    return not_reached(c, p, err);
 }

@@ -9,7 +9,7 @@
 #include "sedgrade/error.h"
 
 enum sg_interp {
-    SG_INTERP_LOGLINEAR = 0, /* linear in log10(D) between neighbours (semi-log paper) */
+    SG_INTERP_LOGLINEAR = 0, /* linear in log10(D) between neighbours (semi-log paper, METHODS.md 7.2) */
     SG_INTERP_MONOTONE       /* GSL Steffen on log10(D): smooth, never overshoots */
 };
 
@@ -23,38 +23,78 @@ struct sg_curve_point {
     int rank;
 };
 
-/* The curve. Fields are read-only for callers; build with sg_curve_build. */
+/* The curve. Fields are read-only for callers; build with sg_curve_build.
+ *
+ * SG_INTERP_MONOTONE uses gsl_interp_steffen on (log10 D, percent), which
+ * needs at least 3 nodes. A curve of exactly 2 nodes built with
+ * SG_INTERP_MONOTONE keeps method == SG_INTERP_MONOTONE but is evaluated
+ * linearly in log10(D) (impl stays NULL): with two nodes there is no
+ * curvature to fit, and the straight line is what a monotone interpolant
+ * through two points reduces to on a single segment. The Steffen
+ * interpolant is monotone on every segment (no value outside the range of
+ * its two end nodes), so it never rises above 100 % when the data do not. */
 struct sg_curve {
     enum sg_interp method;
     size_t n;         /* number of nodes (distinct diameters) */
     double *log10_d;  /* strictly increasing, n values */
     double *percent;  /* percent finer at each node, n values */
-    void *impl;       /* GSL interpolation state (monotone method) */
+    void *impl;       /* GSL interpolation state (monotone method, n >= 3); NULL otherwise */
 };
+
+/* Two diameters whose log10 values differ by no more than this are the same
+ * size (about 2.3e-12 relative; common practice, guards against round-off in
+ * values that were converted back and forth). */
+#define SG_CURVE_SAME_LOG10_D 1e-12
+
+/* A node within this many percentage points of 100 % (coarsest) or 0 %
+ * (finest) counts as 100 % / 0 % for the end-of-curve rules below. */
+#define SG_CURVE_END_TOL_PCT 1e-9
 
 /* Sets an empty curve (safe to release). */
 void sg_curve_init(struct sg_curve *c);
 
-/* Releases a curve's memory; it is empty afterwards. Accepts NULL. */
+/* Releases a curve's memory and GSL state; it is empty afterwards. Accepts NULL. */
 void sg_curve_release(struct sg_curve *c);
 
 /* Builds the curve from n points in any order: sorts by diameter, merges
- * equal diameters by rank, and prepares interpolation. Non-positive or
- * non-finite diameters are SG_EINVAL. Fewer than 2 distinct diameters gives
- * SG_EDOM (nothing to interpolate). The caller keeps pts. On failure c is
- * left empty. */
+ * equal diameters (see SG_CURVE_SAME_LOG10_D) keeping the point with the
+ * lowest rank (ASTM D6913: the coarser set's value; among equal ranks the
+ * first in input order), and prepares interpolation (Steffen state for
+ * SG_INTERP_MONOTONE with 3 or more nodes). c must have been initialised
+ * (sg_curve_init) or built before; any previous content is released.
+ * Returns SG_EINVAL for a NULL pts with n > 0, an unknown method, a
+ * non-positive or non-finite diameter or a non-finite percent; SG_EDOM for
+ * fewer than 2 distinct diameters (nothing to interpolate); SG_ENOMEM;
+ * SG_ENUMERIC if GSL refuses the data. The caller keeps pts. On failure c
+ * is left empty. */
 enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *pts, size_t n,
                               enum sg_interp method, struct sg_error *err);
 
-/* Percent finer at diameter d_mm. SG_EDOM (with the reason in err) when d_mm
- * lies outside the measured range [min D, max D]; never extrapolates. */
+/* Percent finer at diameter d_mm (> 0). Never extrapolates: SG_EDOM, with
+ * the measured range in the message, when d_mm lies outside
+ * [min D, max D]. Two exceptions, which are not extrapolation but what the
+ * points say: above the coarsest point, when that point is at 100 %
+ * (within SG_CURVE_END_TOL_PCT), the percent finer is 100; below the
+ * finest point, when that point is at 0 % (within SG_CURVE_END_TOL_PCT),
+ * it is 0. SG_EINVAL for a non-positive or non-finite d_mm; SG_EDOM for an
+ * empty curve; SG_ENUMERIC if GSL fails. */
 enum sg_status sg_curve_percent_at(const struct sg_curve *c, double d_mm, double *percent,
                                    struct sg_error *err);
 
-/* Diameter, mm, at which percent_finer percent is finer (D_x). Convention for
- * plateaus and non-monotone data: scanning from the coarse end, the first
- * segment with P_fine < p <= P_coarse. SG_EDOM when p is below the finest
- * point's percent or above the coarsest point's percent (not determined). */
+/* Diameter, mm, at which percent_finer percent is finer (D_x).
+ * Convention for plateaus and non-monotone data (METHODS.md 7.2): scanning
+ * segments from the coarse end, the first with P_fine < p <= P_coarse is
+ * used (so a value equal to a plateau's level gives the fine end of the
+ * plateau's rising segment); falling segments are never used. If no segment
+ * qualifies but a node has exactly percent p (the finest point, or a local
+ * minimum), that node's diameter is returned, the first found from the
+ * coarse end. Loglinear: inverse of the straight segment; monotone: Brent
+ * root bracketing (gsl_root_fsolver_brent) on the Steffen interpolant
+ * inside that segment, to 1e-12 in log10(D).
+ * SG_EDOM when the curve never reaches p (p below the lowest or above the
+ * highest percent on the curve; for monotone data: below the finest or
+ * above the coarsest point's percent) with the span in the message;
+ * SG_EINVAL for a non-finite p; SG_ENUMERIC if GSL fails. */
 enum sg_status sg_curve_diameter_at(const struct sg_curve *c, double percent_finer, double *d_mm,
                                     struct sg_error *err);
 
