@@ -1,0 +1,957 @@
+/* reduce.c - `sedgrade reduce` and `sedgrade check`: collect records (files
+ * or folders walked for *.csv), reduce them on a pool of threads, write the
+ * per-test files and the batch summary, and map the outcome to an exit status. */
+#define _XOPEN_SOURCE 700 /* realpath */
+#include <dirent.h>
+#include <errno.h>
+#include <getopt.h>
+#include <limits.h>
+#include <pthread.h>
+#include <stdatomic.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include "cli/cli.h"
+#include "sedgrade/atomic.h"
+#if defined(__has_include)
+#if __has_include("sedgrade/calibio.h")
+#include "sedgrade/calibio.h"
+#define SG_HAVE_CALIBIO 1
+#endif
+#endif
+#include "sedgrade/csvout.h"
+#include "sedgrade/mc.h"
+#include "sedgrade/plot.h"
+#include "sedgrade/recordio.h"
+#include "sedgrade/reduce.h"
+#include "sedgrade/report.h"
+
+#define OUT_POINTS 1u
+#define OUT_SUMMARY 2u
+#define OUT_CURVE 4u
+#define MAX_DX 32
+#define CURVE_POINTS_PER_DECADE 40 /* curve.csv resolution: fine enough to plot elsewhere */
+
+struct reduce_cfg {
+    const char *out_dir;
+    const char *register_dir;
+    struct sg_reduce_options opt;
+    double dx[MAX_DX];
+    unsigned outputs;
+    bool plot[3]; /* indexed by enum sg_plot_format */
+    bool report;
+    size_t mc_draws;
+    unsigned long seed;
+    size_t jobs;
+    bool quiet;
+};
+
+/* The outcome of one record. */
+enum job_status { JOB_OK = 0, JOB_QC_WARNING, JOB_QC_FAILED, JOB_REFUSED, JOB_IO_FAILED };
+
+static const char *job_status_name(enum job_status s)
+{
+    switch (s) {
+    case JOB_OK: return "ok";
+    case JOB_QC_WARNING: return "qc_warning";
+    case JOB_QC_FAILED: return "qc_failed";
+    case JOB_REFUSED: return "refused";
+    case JOB_IO_FAILED: return "io_failed";
+    }
+    return "";
+}
+
+struct job {
+    char *path;
+    enum job_status status;
+    char id[SG_ID_MAX];
+    size_t schema;   /* index into the batch's schema table */
+    char *values;    /* summary values, '\x1f'-separated, in the schema's order */
+};
+
+/* Distinct lists of quantity names seen in the batch (usually one). */
+struct schema_table {
+    pthread_mutex_t lock;
+    char **names; /* each a '\x1f'-separated list */
+    size_t n, cap;
+};
+
+/* Test ids claimed by a written test, so two records with one id cannot
+ * overwrite each other's files. */
+struct id_set {
+    pthread_mutex_t lock;
+    char **ids;
+    char **owners;
+    size_t n, cap;
+};
+
+struct batch {
+    const struct reduce_cfg *cfg;
+    struct job *jobs;
+    size_t n_jobs;
+    atomic_size_t next;
+    struct schema_table schemas;
+    struct id_set ids;
+    pthread_mutex_t stderr_lock;
+};
+
+#ifndef SG_HAVE_CALIBIO
+/* TEMPORARY until the register module lands: inline constants only. */
+static enum sg_status sg_calibio_resolve(const char *register_dir, const struct sg_record *rec,
+                                         struct sg_constants *k, struct sg_error *err)
+{
+    (void)register_dir;
+    (void)err;
+    sg_constants_from_record(rec, k);
+    return SG_OK;
+}
+#endif
+
+/* ---- collecting input files ---- */
+
+struct path_list {
+    char **items;
+    size_t n, cap;
+};
+
+static bool path_list_add(struct path_list *l, const char *path)
+{
+    if (l->n == l->cap) {
+        size_t cap = l->cap ? 2 * l->cap : 64;
+        char **p = realloc(l->items, cap * sizeof *p);
+        if (p == NULL)
+            return false;
+        l->items = p;
+        l->cap = cap;
+    }
+    l->items[l->n] = strdup(path);
+    return l->items[l->n++] != NULL;
+}
+
+static void path_list_release(struct path_list *l)
+{
+    for (size_t i = 0; i < l->n; i++)
+        free(l->items[i]);
+    free(l->items);
+    l->items = NULL;
+    l->n = l->cap = 0;
+}
+
+static int cmp_str(const void *a, const void *b)
+{
+    return strcmp(*(char *const *)a, *(char *const *)b);
+}
+
+static bool has_csv_suffix(const char *name)
+{
+    const size_t n = strlen(name);
+    return n > 4 && strcmp(name + n - 4, ".csv") == 0;
+}
+
+/* Walks dir for *.csv (sorted, recursive; hidden entries and skip_dir are
+ * skipped). Unreadable folders are reported and counted in *problems. */
+static bool walk(const char *dir, const char *skip_real, struct path_list *out, int depth, size_t *problems)
+{
+    char real[PATH_MAX];
+    if (skip_real != NULL && realpath(dir, real) != NULL && strcmp(real, skip_real) == 0)
+        return true;
+    if (depth > 32) {
+        sg_cli_errorf("%s: folders nested too deeply (more than 32 levels); skipped", dir);
+        (*problems)++;
+        return true;
+    }
+    DIR *d = opendir(dir);
+    if (d == NULL) {
+        sg_cli_errorf("%s: cannot read folder: %s", dir, strerror(errno));
+        (*problems)++;
+        return true;
+    }
+    struct path_list here = {0};
+    bool ok = true;
+    const struct dirent *e;
+    while (ok && (e = readdir(d)) != NULL) {
+        if (e->d_name[0] == '.')
+            continue;
+        char path[PATH_MAX];
+        if (snprintf(path, sizeof path, "%s/%s", dir, e->d_name) >= (int)sizeof path)
+            continue;
+        ok = path_list_add(&here, path);
+    }
+    closedir(d);
+    if (here.n > 0)
+        qsort(here.items, here.n, sizeof *here.items, cmp_str);
+    for (size_t i = 0; ok && i < here.n; i++) {
+        struct stat st;
+        if (stat(here.items[i], &st) != 0) {
+            if (has_csv_suffix(here.items[i])) {
+                sg_cli_errorf("%s: cannot read: %s", here.items[i], strerror(errno));
+                (*problems)++;
+            }
+            continue;
+        }
+        if (S_ISDIR(st.st_mode))
+            ok = walk(here.items[i], skip_real, out, depth + 1, problems);
+        else if (has_csv_suffix(here.items[i]))
+            ok = path_list_add(out, here.items[i]);
+    }
+    path_list_release(&here);
+    return ok;
+}
+
+static bool collect(char **args, int n, const char *skip_dir, struct path_list *out, size_t *problems)
+{
+    char skip_real[PATH_MAX];
+    const char *skip = skip_dir != NULL && realpath(skip_dir, skip_real) != NULL ? skip_real : NULL;
+    for (int i = 0; i < n; i++) {
+        struct stat st;
+        if (stat(args[i], &st) == 0 && S_ISDIR(st.st_mode)) {
+            if (!walk(args[i], skip, out, 0, problems))
+                return false;
+        } else if (!path_list_add(out, args[i])) {
+            return false;
+        }
+    }
+    return true;
+}
+
+/* ---- batch bookkeeping ---- */
+
+static size_t schema_intern(struct schema_table *t, const char *names, bool *oom)
+{
+    pthread_mutex_lock(&t->lock);
+    size_t i = 0;
+    for (; i < t->n; i++)
+        if (strcmp(t->names[i], names) == 0)
+            break;
+    if (i == t->n) {
+        if (t->n == t->cap) {
+            size_t cap = t->cap ? 2 * t->cap : 4;
+            char **p = realloc(t->names, cap * sizeof *p);
+            if (p == NULL) {
+                *oom = true;
+                pthread_mutex_unlock(&t->lock);
+                return 0;
+            }
+            t->names = p;
+            t->cap = cap;
+        }
+        t->names[t->n] = strdup(names);
+        if (t->names[t->n] == NULL)
+            *oom = true;
+        else
+            t->n++;
+    }
+    pthread_mutex_unlock(&t->lock);
+    return i;
+}
+
+/* Claims id for path; false (with the owner) when another record has it. */
+static bool id_claim(struct id_set *s, const char *id, const char *path, const char **owner)
+{
+    bool ok = true;
+    pthread_mutex_lock(&s->lock);
+    for (size_t i = 0; i < s->n; i++)
+        if (strcmp(s->ids[i], id) == 0) {
+            *owner = s->owners[i];
+            ok = false;
+            break;
+        }
+    if (ok) {
+        if (s->n == s->cap) {
+            size_t cap = s->cap ? 2 * s->cap : 256;
+            char **a = realloc(s->ids, cap * sizeof *a);
+            if (a != NULL)
+                s->ids = a;
+            char **b = realloc(s->owners, cap * sizeof *b);
+            if (b != NULL)
+                s->owners = b;
+            if (a != NULL && b != NULL)
+                s->cap = cap;
+        }
+        if (s->n < s->cap) {
+            s->ids[s->n] = strdup(id);
+            s->owners[s->n] = strdup(path);
+            s->n++;
+        }
+    }
+    pthread_mutex_unlock(&s->lock);
+    return ok;
+}
+
+/* Serialises the summary: names and values joined by '\x1f'. */
+static char *join_quantities(const struct sg_result *res, bool names)
+{
+    size_t cap = 256, len = 0;
+    char *s = malloc(cap);
+    if (s == NULL)
+        return NULL;
+    s[0] = '\0';
+    for (size_t i = 0; i < res->n_quantities; i++) {
+        const struct sg_quantity *q = &res->quantities[i];
+        char buf[SG_QTEXT_MAX + 8];
+        if (names)
+            (void)snprintf(buf, sizeof buf, "%s", q->name);
+        else if (!q->determined)
+            buf[0] = '\0';
+        else if (q->is_text)
+            (void)snprintf(buf, sizeof buf, "%s", q->text);
+        else
+            sg_csvout_number(q->value, buf, sizeof buf);
+        const size_t need = len + strlen(buf) + 2;
+        if (need > cap) {
+            while (cap < need)
+                cap *= 2;
+            char *p = realloc(s, cap);
+            if (p == NULL) {
+                free(s);
+                return NULL;
+            }
+            s = p;
+        }
+        len += (size_t)sprintf(s + len, "%s%s", i ? "\x1f" : "", buf);
+    }
+    return s;
+}
+
+/* ---- one record ---- */
+
+typedef enum sg_status (*csv_writer)(FILE *fp, const struct sg_result *res, bool with_u, struct sg_error *err);
+
+static enum sg_status write_curve(FILE *fp, const struct sg_result *res, bool with_u, struct sg_error *err)
+{
+    (void)with_u;
+    return sg_csvout_curve(fp, res, CURVE_POINTS_PER_DECADE, err);
+}
+
+static enum sg_status write_csv(const char *dir, const char *id, const char *suffix, csv_writer fn,
+                                const struct sg_result *res, bool with_u, struct sg_error *err)
+{
+    char path[PATH_MAX];
+    if (snprintf(path, sizeof path, "%s/%s.%s", dir, id, suffix) >= (int)sizeof path)
+        return sg_error_set(err, SG_EIO, 0, 0, "output path for '%s' is too long", id);
+    struct sg_atomic_file f;
+    enum sg_status st = sg_atomic_open(&f, path, err);
+    if (st != SG_OK)
+        return st;
+    if ((st = fn(f.fp, res, with_u, err)) != SG_OK) {
+        sg_atomic_abort(&f);
+        return st;
+    }
+    return sg_atomic_commit(&f, err);
+}
+
+/* Removes the per-test files already written when a later one fails, so a
+ * test is either complete on disk or absent. */
+static void remove_outputs(const char *dir, const char *id)
+{
+    static const char *const suffixes[] = {"points.csv", "summary.csv", "curve.csv", "png", "svg", "pdf",
+                                           "report.pdf"};
+    for (size_t i = 0; i < sizeof suffixes / sizeof suffixes[0]; i++) {
+        char path[PATH_MAX];
+        if (snprintf(path, sizeof path, "%s/%s.%s", dir, id, suffixes[i]) < (int)sizeof path)
+            (void)unlink(path);
+    }
+}
+
+static enum sg_status write_outputs(const struct reduce_cfg *cfg, const struct sg_record *rec,
+                                    const struct sg_result *res, struct sg_error *err)
+{
+    const bool with_u = cfg->mc_draws > 0;
+    enum sg_status st = SG_OK;
+    if (st == SG_OK && (cfg->outputs & OUT_POINTS))
+        st = write_csv(cfg->out_dir, rec->id, "points.csv", sg_csvout_points, res, with_u, err);
+    if (st == SG_OK && (cfg->outputs & OUT_SUMMARY))
+        st = write_csv(cfg->out_dir, rec->id, "summary.csv", sg_csvout_summary, res, with_u, err);
+    if (st == SG_OK && (cfg->outputs & OUT_CURVE))
+        st = write_csv(cfg->out_dir, rec->id, "curve.csv", write_curve, res, with_u, err);
+    for (int f = SG_PLOT_PNG; st == SG_OK && f <= SG_PLOT_PDF; f++) {
+        if (!cfg->plot[f])
+            continue;
+        char path[PATH_MAX];
+        if (snprintf(path, sizeof path, "%s/%s.%s", cfg->out_dir, rec->id,
+                     sg_plot_extension((enum sg_plot_format)f)) >= (int)sizeof path)
+            st = sg_error_set(err, SG_EIO, 0, 0, "output path for '%s' is too long", rec->id);
+        else
+            st = sg_plot_write(res, rec, (enum sg_plot_format)f, path, err);
+    }
+    if (st == SG_OK && cfg->report) {
+        char path[PATH_MAX];
+        if (snprintf(path, sizeof path, "%s/%s.report.pdf", cfg->out_dir, rec->id) >= (int)sizeof path)
+            st = sg_error_set(err, SG_EIO, 0, 0, "output path for '%s' is too long", rec->id);
+        else
+            st = sg_report_write(res, rec, path, err);
+    }
+    if (st != SG_OK)
+        remove_outputs(cfg->out_dir, rec->id);
+    return st;
+}
+
+static void report_locked(struct batch *b, const char *file, const struct sg_error *err)
+{
+    pthread_mutex_lock(&b->stderr_lock);
+    sg_cli_report(file, err);
+    pthread_mutex_unlock(&b->stderr_lock);
+}
+
+static void run_job(struct batch *b, struct job *job, struct sg_record *rec, struct sg_result *res)
+{
+    const struct reduce_cfg *cfg = b->cfg;
+    struct sg_error err;
+    struct sg_constants k;
+    sg_error_clear(&err);
+    sg_record_init(rec);
+    enum sg_status st = sg_recordio_load(job->path, rec, NULL, &err);
+    if (st == SG_OK)
+        st = sg_calibio_resolve(cfg->register_dir, rec, &k, &err);
+    if (st == SG_OK)
+        st = sg_reduce(rec, &k, &cfg->opt, res, &err);
+    if (st == SG_OK && cfg->mc_draws > 0) {
+        const struct sg_mc_options mc = {cfg->mc_draws, cfg->seed,
+                                         b->n_jobs == 1 ? (unsigned)cfg->jobs : 1u};
+        st = sg_mc_run(rec, &k, &cfg->opt, &mc, res, &err);
+    }
+    (void)snprintf(job->id, sizeof job->id, "%s", rec->id);
+    if (st == SG_OK) {
+        const char *owner = NULL;
+        if (!id_claim(&b->ids, rec->id, job->path, &owner))
+            st = sg_error_set(&err, SG_EINVAL, rec->pos_id.line, rec->pos_id.col,
+                              "test id '%s' is also used by '%s' (give each test its own id)", rec->id,
+                              owner);
+    }
+    if (st == SG_OK)
+        st = write_outputs(cfg, rec, res, &err);
+    if (st != SG_OK) {
+        report_locked(b, job->path, &err);
+        job->status = st == SG_EIO ? JOB_IO_FAILED : JOB_REFUSED;
+        sg_record_release(rec);
+        return;
+    }
+    const enum sg_severity worst = sg_result_worst(res);
+    job->status = worst == SG_SEVERITY_FAILURE ? JOB_QC_FAILED
+                  : worst == SG_SEVERITY_WARNING ? JOB_QC_WARNING
+                                                 : JOB_OK;
+    if (!cfg->quiet && worst >= SG_SEVERITY_WARNING) {
+        pthread_mutex_lock(&b->stderr_lock);
+        for (size_t i = 0; i < res->n_flags; i++) {
+            const struct sg_flag *f = &res->flags[i];
+            if (f->severity < SG_SEVERITY_WARNING)
+                continue;
+            if (f->line > 0)
+                fprintf(stderr, "sedgrade: %s:%u: qc %s %s: %s\n", job->path, f->line,
+                        sg_severity_name(f->severity), f->name, f->message);
+            else
+                fprintf(stderr, "sedgrade: %s: qc %s %s: %s\n", job->path, sg_severity_name(f->severity),
+                        f->name, f->message);
+        }
+        pthread_mutex_unlock(&b->stderr_lock);
+    }
+    bool oom = false;
+    char *names = join_quantities(res, true);
+    job->values = join_quantities(res, false);
+    if (names != NULL)
+        job->schema = schema_intern(&b->schemas, names, &oom);
+    if (names == NULL || job->values == NULL || oom) {
+        free(job->values);
+        job->values = NULL;
+    }
+    free(names);
+    sg_record_release(rec);
+}
+
+static void *worker(void *arg)
+{
+    struct batch *b = arg;
+    struct sg_record rec;
+    struct sg_result res;
+    sg_record_init(&rec);
+    sg_result_init(&res);
+    for (;;) {
+        const size_t i = atomic_fetch_add(&b->next, 1);
+        if (i >= b->n_jobs)
+            break;
+        run_job(b, &b->jobs[i], &rec, &res);
+    }
+    sg_result_release(&res);
+    sg_record_release(&rec);
+    return NULL;
+}
+
+/* ---- batch summary ---- */
+
+static int cmp_job(const void *a, const void *b)
+{
+    const struct job *x = a, *y = b;
+    const int c = strcmp(x->id, y->id);
+    return c != 0 ? c : strcmp(x->path, y->path);
+}
+
+/* Splits a '\x1f'-joined list in place into fields; returns the count. */
+static size_t split_fields(char *s, char **fields, size_t max)
+{
+    size_t n = 0;
+    if (s == NULL)
+        return 0;
+    for (char *p = s; n < max;) {
+        fields[n++] = p;
+        char *q = strchr(p, '\x1f');
+        if (q == NULL)
+            break;
+        *q = '\0';
+        p = q + 1;
+    }
+    return n;
+}
+
+static void csv_field(FILE *fp, const char *s, bool first)
+{
+    if (!first)
+        fputc(',', fp);
+    if (strpbrk(s, ",\"\r\n") == NULL) {
+        fputs(s, fp);
+        return;
+    }
+    fputc('"', fp);
+    for (; *s; s++) {
+        if (*s == '"')
+            fputc('"', fp);
+        fputc(*s, fp);
+    }
+    fputc('"', fp);
+}
+
+#define MAX_COLUMNS 512
+
+static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
+{
+    /* Columns: the union of quantity names in order of first appearance. */
+    char *cols[MAX_COLUMNS];
+    size_t n_cols = 0;
+    char **schema_fields = calloc(b->schemas.n ? b->schemas.n : 1, sizeof *schema_fields);
+    size_t *schema_n = calloc(b->schemas.n ? b->schemas.n : 1, sizeof *schema_n);
+    char *vals[MAX_COLUMNS];
+    enum sg_status st = SG_OK;
+    if (schema_fields == NULL || schema_n == NULL) {
+        st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
+        goto cleanup;
+    }
+    for (size_t s = 0; s < b->schemas.n; s++) {
+        schema_fields[s] = b->schemas.names[s];
+        char *fields[MAX_COLUMNS];
+        char *copy = strdup(b->schemas.names[s]);
+        if (copy == NULL) {
+            st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
+            goto cleanup;
+        }
+        const size_t nf = split_fields(copy, fields, MAX_COLUMNS);
+        schema_n[s] = nf;
+        for (size_t i = 0; i < nf; i++) {
+            size_t j = 0;
+            while (j < n_cols && strcmp(cols[j], fields[i]) != 0)
+                j++;
+            if (j == n_cols && n_cols < MAX_COLUMNS)
+                cols[n_cols++] = strdup(fields[i]);
+        }
+        free(copy);
+    }
+    char path[PATH_MAX];
+    if (snprintf(path, sizeof path, "%s/summary.csv", b->cfg->out_dir) >= (int)sizeof path) {
+        st = sg_error_set(err, SG_EIO, 0, 0, "output path is too long");
+        goto cleanup;
+    }
+    struct sg_atomic_file f;
+    if ((st = sg_atomic_open(&f, path, err)) != SG_OK)
+        goto cleanup;
+    csv_field(f.fp, "id", true);
+    csv_field(f.fp, "status", false);
+    csv_field(f.fp, "file", false);
+    for (size_t j = 0; j < n_cols; j++)
+        csv_field(f.fp, cols[j] ? cols[j] : "", false);
+    fputc('\n', f.fp);
+    for (size_t i = 0; i < b->n_jobs; i++) {
+        struct job *job = &b->jobs[i];
+        csv_field(f.fp, job->id, true);
+        csv_field(f.fp, job_status_name(job->status), false);
+        csv_field(f.fp, job->path, false);
+        char *names[MAX_COLUMNS];
+        size_t nv = 0, nn = 0;
+        char *ncopy = NULL;
+        if (job->values != NULL) {
+            nv = split_fields(job->values, vals, MAX_COLUMNS);
+            ncopy = strdup(b->schemas.names[job->schema]);
+            nn = split_fields(ncopy, names, MAX_COLUMNS);
+        }
+        for (size_t j = 0; j < n_cols; j++) {
+            const char *v = "";
+            for (size_t q = 0; q < nn && q < nv; q++)
+                if (cols[j] != NULL && strcmp(names[q], cols[j]) == 0) {
+                    v = vals[q];
+                    break;
+                }
+            csv_field(f.fp, v, false);
+        }
+        fputc('\n', f.fp);
+        free(ncopy);
+    }
+    st = sg_atomic_commit(&f, err);
+cleanup:
+    for (size_t j = 0; j < n_cols; j++)
+        free(cols[j]);
+    free(schema_fields);
+    free(schema_n);
+    return st;
+}
+
+/* ---- options ---- */
+
+static const char reduce_help[] =
+    "usage: sedgrade reduce [OPTIONS] FILE|DIR...\n"
+    "\n"
+    "Reduces test records (folders are walked for *.csv) into grading results.\n"
+    "\n"
+    "  -o, --out DIR            output folder (created; default ./out)\n"
+    "      --calibration DIR    instrument calibration register (default ./calibration)\n"
+    "      --interp METHOD      loglinear (default: linear in log10 D, as on semi-log paper)\n"
+    "                           or monotone (GSL Steffen on log10 D)\n"
+    "      --plot FORMAT        grading-curve picture: svg, png or pdf (repeatable)\n"
+    "      --report             one-page PDF report per test (<id>.report.pdf)\n"
+    "      --mc N               Monte Carlo uncertainty with N draws (JCGM 101)\n"
+    "      --seed S             random seed for --mc (default 1)\n"
+    "  -j, --jobs N             threads (default: the number of processors)\n"
+    "      --outputs LIST       per-test files: points,summary,curve (default) or none\n"
+    "      --dx LIST            extra D-values to report, percent finer (e.g. 5,90,95)\n"
+    "      --strict             QC warnings fail the test (exit 1)\n"
+    "      --junction-gap PCT   sieve/sedimentation junction gap limit (default 5)\n"
+    "  -q, --quiet              no QC lines or tally on stderr\n"
+    "  -h, --help               this help\n"
+    "\n"
+    "exit status: 0 all good; 1 results written but a test failed a QC rule;\n"
+    "2 bad input or usage (nothing written for that test); 3 I/O failure.\n";
+
+static bool parse_outputs(const char *text, unsigned *out)
+{
+    unsigned v = 0;
+    char buf[128];
+    if (snprintf(buf, sizeof buf, "%s", text) >= (int)sizeof buf)
+        goto bad;
+    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
+        if (strcmp(tok, "points") == 0)
+            v |= OUT_POINTS;
+        else if (strcmp(tok, "summary") == 0)
+            v |= OUT_SUMMARY;
+        else if (strcmp(tok, "curve") == 0)
+            v |= OUT_CURVE;
+        else if (strcmp(tok, "none") == 0)
+            v |= 0;
+        else
+            goto bad;
+    }
+    *out = v;
+    return true;
+bad:
+    sg_cli_errorf("option --outputs: '%s' is not a list of points, summary, curve or none", text);
+    return false;
+}
+
+static bool parse_dx(const char *text, struct reduce_cfg *cfg)
+{
+    char buf[512];
+    if (snprintf(buf, sizeof buf, "%s", text) >= (int)sizeof buf) {
+        sg_cli_errorf("option --dx: list too long");
+        return false;
+    }
+    size_t n = 0;
+    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
+        if (n == MAX_DX) {
+            sg_cli_errorf("option --dx: at most %d values", MAX_DX);
+            return false;
+        }
+        if (!sg_cli_parse_double("--dx", tok, 0.1, 99.9, &cfg->dx[n]))
+            return false;
+        n++;
+    }
+    cfg->opt.extra_dx = cfg->dx;
+    cfg->opt.n_extra_dx = n;
+    return true;
+}
+
+enum opt_id { OPT_CAL = 256, OPT_INTERP, OPT_PLOT, OPT_REPORT, OPT_MC, OPT_SEED, OPT_OUTPUTS, OPT_DX,
+              OPT_STRICT, OPT_GAP };
+
+/* Parses reduce's options; returns -1 to go on, else an exit status. */
+static int parse_options(int argc, char **argv, struct reduce_cfg *cfg)
+{
+    static const struct option longopts[] = {
+        {"out", required_argument, NULL, 'o'},       {"calibration", required_argument, NULL, OPT_CAL},
+        {"interp", required_argument, NULL, OPT_INTERP}, {"plot", required_argument, NULL, OPT_PLOT},
+        {"report", no_argument, NULL, OPT_REPORT},   {"mc", required_argument, NULL, OPT_MC},
+        {"seed", required_argument, NULL, OPT_SEED}, {"jobs", required_argument, NULL, 'j'},
+        {"outputs", required_argument, NULL, OPT_OUTPUTS}, {"dx", required_argument, NULL, OPT_DX},
+        {"strict", no_argument, NULL, OPT_STRICT},   {"junction-gap", required_argument, NULL, OPT_GAP},
+        {"quiet", no_argument, NULL, 'q'},           {"help", no_argument, NULL, 'h'},
+        {NULL, 0, NULL, 0}};
+    long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
+    cfg->out_dir = "out";
+    cfg->register_dir = "calibration";
+    cfg->opt = sg_reduce_options_default();
+    cfg->outputs = OUT_POINTS | OUT_SUMMARY | OUT_CURVE;
+    cfg->seed = 1;
+    cfg->jobs = ncpu > 0 ? (size_t)ncpu : 1;
+    optind = 1;
+    opterr = 0;
+    int c;
+    double d = 0.0;
+    size_t z = 0;
+    while ((c = getopt_long(argc, argv, ":o:j:qh", longopts, NULL)) != -1) {
+        switch (c) {
+        case 'o': cfg->out_dir = optarg; break;
+        case OPT_CAL: cfg->register_dir = optarg; break;
+        case OPT_INTERP:
+            if (strcmp(optarg, "loglinear") == 0)
+                cfg->opt.interp = SG_INTERP_LOGLINEAR;
+            else if (strcmp(optarg, "monotone") == 0)
+                cfg->opt.interp = SG_INTERP_MONOTONE;
+            else {
+                sg_cli_errorf("option --interp: '%s' is not loglinear or monotone", optarg);
+                return SG_EXIT_INPUT;
+            }
+            break;
+        case OPT_PLOT:
+            if (strcmp(optarg, "png") == 0)
+                cfg->plot[SG_PLOT_PNG] = true;
+            else if (strcmp(optarg, "svg") == 0)
+                cfg->plot[SG_PLOT_SVG] = true;
+            else if (strcmp(optarg, "pdf") == 0)
+                cfg->plot[SG_PLOT_PDF] = true;
+            else {
+                sg_cli_errorf("option --plot: '%s' is not svg, png or pdf", optarg);
+                return SG_EXIT_INPUT;
+            }
+            break;
+        case OPT_REPORT: cfg->report = true; break;
+        case OPT_MC:
+            if (!sg_cli_parse_size("--mc", optarg, 2, 100000000, &cfg->mc_draws))
+                return SG_EXIT_INPUT;
+            break;
+        case OPT_SEED:
+            if (!sg_cli_parse_size("--seed", optarg, 0, (size_t)ULONG_MAX, &z))
+                return SG_EXIT_INPUT;
+            cfg->seed = (unsigned long)z;
+            break;
+        case 'j':
+            if (!sg_cli_parse_size("--jobs", optarg, 1, 256, &cfg->jobs))
+                return SG_EXIT_INPUT;
+            break;
+        case OPT_OUTPUTS:
+            if (!parse_outputs(optarg, &cfg->outputs))
+                return SG_EXIT_INPUT;
+            break;
+        case OPT_DX:
+            if (!parse_dx(optarg, cfg))
+                return SG_EXIT_INPUT;
+            break;
+        case OPT_STRICT: cfg->opt.qc.strict = true; break;
+        case OPT_GAP:
+            if (!sg_cli_parse_double("--junction-gap", optarg, 0.0, 100.0, &d))
+                return SG_EXIT_INPUT;
+            cfg->opt.qc.junction_gap_max_pct = d;
+            break;
+        case 'q': cfg->quiet = true; break;
+        case 'h': fputs(reduce_help, stdout); return SG_EXIT_OK;
+        case ':': sg_cli_errorf("option %s needs a value (see 'sedgrade reduce --help')", argv[optind - 1]);
+            return SG_EXIT_INPUT;
+        default:
+            sg_cli_errorf("unknown option '%s' (see 'sedgrade reduce --help')", argv[optind - 1]);
+            return SG_EXIT_INPUT;
+        }
+    }
+    if (optind >= argc) {
+        sg_cli_errorf("no test records given (usage: sedgrade reduce [OPTIONS] FILE|DIR...)");
+        return SG_EXIT_INPUT;
+    }
+    return -1;
+}
+
+int sg_cli_reduce(int argc, char **argv)
+{
+    struct reduce_cfg cfg;
+    memset(&cfg, 0, sizeof cfg);
+    const int early = parse_options(argc, argv, &cfg);
+    if (early >= 0)
+        return early;
+
+    struct path_list files = {0};
+    size_t walk_problems = 0;
+    if (!collect(argv + optind, argc - optind, cfg.out_dir, &files, &walk_problems)) {
+        sg_cli_errorf("out of memory listing the test records");
+        path_list_release(&files);
+        return SG_EXIT_IO;
+    }
+    if (files.n == 0) {
+        sg_cli_errorf("no test records (*.csv) found in the given paths");
+        path_list_release(&files);
+        return SG_EXIT_INPUT;
+    }
+    struct sg_error err;
+    if (sg_mkdir_p(cfg.out_dir, &err) != SG_OK) {
+        sg_cli_report(NULL, &err);
+        path_list_release(&files);
+        return SG_EXIT_IO;
+    }
+
+    struct batch b;
+    memset(&b, 0, sizeof b);
+    b.cfg = &cfg;
+    b.n_jobs = files.n;
+    b.jobs = calloc(files.n, sizeof *b.jobs);
+    if (b.jobs == NULL) {
+        sg_cli_errorf("out of memory for %zu test records", files.n);
+        path_list_release(&files);
+        return SG_EXIT_IO;
+    }
+    for (size_t i = 0; i < files.n; i++)
+        b.jobs[i].path = files.items[i];
+    atomic_init(&b.next, 0);
+    pthread_mutex_init(&b.schemas.lock, NULL);
+    pthread_mutex_init(&b.ids.lock, NULL);
+    pthread_mutex_init(&b.stderr_lock, NULL);
+
+    size_t n_threads = cfg.jobs < files.n ? cfg.jobs : files.n;
+    pthread_t *threads = calloc(n_threads, sizeof *threads);
+    size_t started = 0;
+    for (; threads != NULL && started + 1 < n_threads; started++)
+        if (pthread_create(&threads[started], NULL, worker, &b) != 0)
+            break;
+    worker(&b); /* the main thread works too */
+    for (size_t i = 0; i < started; i++)
+        pthread_join(threads[i], NULL);
+    free(threads);
+
+    size_t n_ok = 0, n_flagged = 0, n_failed_qc = 0, n_refused = 0, n_io = 0;
+    for (size_t i = 0; i < b.n_jobs; i++) {
+        switch (b.jobs[i].status) {
+        case JOB_OK: n_ok++; break;
+        case JOB_QC_WARNING: n_ok++; n_flagged++; break;
+        case JOB_QC_FAILED: n_ok++; n_flagged++; n_failed_qc++; break;
+        case JOB_REFUSED: n_refused++; break;
+        case JOB_IO_FAILED: n_io++; break;
+        }
+    }
+    if (cfg.opt.qc.strict)
+        for (size_t i = 0; i < b.n_jobs; i++)
+            if (b.jobs[i].status == JOB_QC_WARNING) {
+                b.jobs[i].status = JOB_QC_FAILED;
+                n_failed_qc++;
+            }
+
+    int rc = SG_EXIT_OK;
+    if (files.n > 1) {
+        qsort(b.jobs, b.n_jobs, sizeof *b.jobs, cmp_job);
+        if (write_batch_summary(&b, &err) != SG_OK) {
+            sg_cli_report(NULL, &err);
+            rc = SG_EXIT_IO;
+        }
+    }
+    if (!cfg.quiet)
+        fprintf(stderr, "sedgrade: %zu reduced (%zu QC-flagged, %zu QC-failed), %zu refused%s; results in %s\n",
+                n_ok, n_flagged, n_failed_qc, n_refused + walk_problems,
+                n_io ? " , some not written (I/O errors)" : "", cfg.out_dir);
+    if (rc == SG_EXIT_OK)
+        rc = n_io ? SG_EXIT_IO : (n_refused + walk_problems) ? SG_EXIT_INPUT : n_failed_qc ? SG_EXIT_QC : SG_EXIT_OK;
+
+    for (size_t i = 0; i < b.n_jobs; i++)
+        free(b.jobs[i].values);
+    free(b.jobs);
+    for (size_t i = 0; i < b.schemas.n; i++)
+        free(b.schemas.names[i]);
+    free(b.schemas.names);
+    for (size_t i = 0; i < b.ids.n; i++) {
+        free(b.ids.ids[i]);
+        free(b.ids.owners[i]);
+    }
+    free(b.ids.ids);
+    free(b.ids.owners);
+    pthread_mutex_destroy(&b.schemas.lock);
+    pthread_mutex_destroy(&b.ids.lock);
+    pthread_mutex_destroy(&b.stderr_lock);
+    path_list_release(&files);
+    return rc;
+}
+
+/* ---- check ---- */
+
+static const char check_help[] =
+    "usage: sedgrade check [OPTIONS] FILE|DIR...\n"
+    "\n"
+    "Validates test records: lists every problem found (file:line:column), writes\n"
+    "nothing. Instruments named in a record are looked up in the register.\n"
+    "\n"
+    "      --calibration DIR    instrument calibration register (default ./calibration)\n"
+    "  -h, --help               this help\n"
+    "\n"
+    "exit status: 0 every record is valid; 2 at least one problem; 3 I/O failure.\n";
+
+int sg_cli_check(int argc, char **argv)
+{
+    static const struct option longopts[] = {{"calibration", required_argument, NULL, OPT_CAL},
+                                             {"help", no_argument, NULL, 'h'},
+                                             {NULL, 0, NULL, 0}};
+    const char *register_dir = "calibration";
+    optind = 1;
+    opterr = 0;
+    int c;
+    while ((c = getopt_long(argc, argv, ":h", longopts, NULL)) != -1) {
+        switch (c) {
+        case OPT_CAL: register_dir = optarg; break;
+        case 'h': fputs(check_help, stdout); return SG_EXIT_OK;
+        case ':': sg_cli_errorf("option %s needs a value", argv[optind - 1]); return SG_EXIT_INPUT;
+        default:
+            sg_cli_errorf("unknown option '%s' (see 'sedgrade check --help')", argv[optind - 1]);
+            return SG_EXIT_INPUT;
+        }
+    }
+    if (optind >= argc) {
+        sg_cli_errorf("no test records given (usage: sedgrade check FILE|DIR...)");
+        return SG_EXIT_INPUT;
+    }
+    struct path_list files = {0};
+    size_t problems = 0;
+    if (!collect(argv + optind, argc - optind, NULL, &files, &problems)) {
+        path_list_release(&files);
+        return SG_EXIT_IO;
+    }
+    int rc = problems ? SG_EXIT_INPUT : SG_EXIT_OK;
+    for (size_t i = 0; i < files.n; i++) {
+        struct sg_record rec;
+        struct sg_diag_list diags = {0};
+        struct sg_error err;
+        sg_error_clear(&err);
+        sg_record_init(&rec);
+        enum sg_status st = sg_recordio_load(files.items[i], &rec, &diags, &err);
+        if (st == SG_OK) {
+            struct sg_constants k;
+            st = sg_calibio_resolve(register_dir, &rec, &k, &err);
+            if (st != SG_OK)
+                (void)sg_diag_add(&diags, &err);
+        }
+        if (st != SG_OK && diags.n == 0)
+            (void)sg_diag_add(&diags, &err);
+        for (size_t j = 0; j < diags.n; j++)
+            sg_cli_report(files.items[i], &diags.items[j]);
+        if (st == SG_OK)
+            printf("%s: ok (%s, %zu rows)\n", files.items[i], rec.id,
+                   rec.n_sieve + rec.n_fine_sieve + rec.n_readings + rec.n_pipettes);
+        else {
+            printf("%s: %zu problem%s\n", files.items[i], diags.n, diags.n == 1 ? "" : "s");
+            const int e = sg_cli_exit_for(st);
+            if (e > rc)
+                rc = e;
+        }
+        sg_diag_release(&diags);
+        sg_record_release(&rec);
+    }
+    path_list_release(&files);
+    return rc;
+}
