@@ -493,7 +493,7 @@ static enum sg_status rule_monotone(const struct sg_qc_limits *lim, struct sg_re
     char where[96];
     tally_where(&rise, "point", where, sizeof where);
     return flag(res, "non_monotone", rise.worst_line, err,
-                "the curve rises to %.4g %% at %.3g mm, %.3g points above a coarser point (tolerance %g); %s "
+                "the curve rises to %.4g %% at %.3g mm, %.3g points above a coarser point (tolerance %g points); %s "
                 "(check the splice: specimen mass, split sieve percentage, dispersion)",
                 rise.worst, rise.worst_aux, rise.worst_excess, lim->monotone_tolerance_pct, where);
 }
