@@ -361,7 +361,7 @@ static enum sg_status rule_readings(const struct sg_constants *k, const struct s
         tally_where(&fall, "reading", where, sizeof where);
         st = flag(res, "not_falling", fall.worst_line, err,
                   "percent of specimen %.4g %% is %.3g points above an earlier reading's, but it must fall "
-                  "with time (tolerance %g); %s (check those readings, the blank and the temperature)",
+                  "with time (tolerance %g points); %s (check those readings, the blank and the temperature)",
                   fall.worst, fall.worst_aux, lim->monotone_tolerance_pct, where);
     }
     if (st == SG_OK && range.count > 0) {
