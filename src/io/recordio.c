@@ -1,0 +1,1304 @@
+/* recordio.c - the test-record reader: a text check (binary, UTF-8), field
+ * splitting by libcsv with our own line/column tracking, interpretation of the
+ * rows and keys, then sg_record_validate() for completeness. */
+#include "sedgrade/recordio.h"
+
+#include <csv.h>
+#include <errno.h>
+#include <fcntl.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdbool.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include "sedgrade/sieve.h"
+
+/* Bytes of a field kept for interpretation (longer fields are never valid:
+ * names stop at 63 characters, numbers at NUMBER_TEXT_MAX). */
+#define FIELD_TEXT_MAX 256
+/* Fields of one row kept; the longest valid row (reading) has 5. */
+#define ROW_FIELDS_MAX 8
+/* Characters of an offending value quoted in a message. */
+#define SHOW_CHARS 40
+#define SHOW_BUF (SHOW_CHARS * 4 + 4)
+/* Longest text accepted as a number (a double needs at most 17 significant digits). */
+#define NUMBER_TEXT_MAX 64
+/* libcsv grows its field buffer by this much at least (its own default). */
+#define CSV_BLOCK_MIN 128
+/* Longest key or row kind compared for "did you mean". */
+#define NAME_CMP_MAX 63
+/* Size of the buffer reads grow by for files whose size fstat cannot tell. */
+#define READ_CHUNK ((size_t)64 * 1024)
+
+/* ---- keys of 'test' rows ---------------------------------------------------------- */
+
+enum vtype { V_ID, V_NAME, V_METHOD, V_SCALE, V_STANDARD, V_DATE, V_NUM, V_NUM2 };
+
+/* How a number is described in messages: "<what> 'x' is not a number (write
+ * <unit_words> as a decimal number, e.g. <example>)". */
+struct numspec {
+    const char *what;
+    const char *unit_words;
+    const char *example;
+};
+
+enum key {
+    K_ID, K_METHOD, K_DATE, K_PARTICLE_DENSITY, K_SAMPLE_MASS, K_SPLIT_APERTURE, K_SPECIMEN_MASS,
+    K_VOLUME, K_HYDROMETER, K_CYLINDER, K_THERMOMETER, K_PIPETTE_ID, K_SCALE, K_DEPTH_LINE,
+    K_MENISCUS, K_COMPOSITE, K_PIPETTE_VOLUME, K_DISPERSANT, K_LIQUID_LIMIT, K_PLASTIC_LIMIT,
+    K_NATURAL_MOISTURE, K_STANDARD, K_U_READING, K_U_TEMP, K_U_ELAPSED, K_U_MASS,
+    K_U_PARTICLE_DENSITY, K_U_BLANK, K_U_MENISCUS, K_U_PIPETTE_VOLUME, K_U_SOLIDS, K_U_DEPTH,
+    K_COUNT
+};
+
+struct keyinfo {
+    const char *name;
+    enum vtype type;
+    bool nonneg; /* the value must be >= 0 (checked here; validation does not) */
+    struct numspec num;
+};
+
+static const struct keyinfo KEYS[K_COUNT] = {
+    [K_ID] = {"id", V_ID, false, {0}},
+    [K_METHOD] = {"method", V_METHOD, false, {0}},
+    [K_DATE] = {"date", V_DATE, false, {0}},
+    [K_PARTICLE_DENSITY] = {"particle_density_mg_m3", V_NUM, false,
+                            {"particle density", "Mg/m3", "2.65"}},
+    [K_SAMPLE_MASS] = {"sample_dry_mass_g", V_NUM, false, {"sample dry mass", "grams", "1523.4"}},
+    [K_SPLIT_APERTURE] = {"split_aperture_mm", V_NUM, false, {"split aperture", "millimetres", "2"}},
+    [K_SPECIMEN_MASS] = {"specimen_dry_mass_g", V_NUM, false, {"specimen dry mass", "grams", "50.12"}},
+    [K_VOLUME] = {"suspension_volume_ml", V_NUM, false, {"suspension volume", "millilitres", "1000"}},
+    [K_HYDROMETER] = {"hydrometer", V_NAME, false, {0}},
+    [K_CYLINDER] = {"cylinder", V_NAME, false, {0}},
+    [K_THERMOMETER] = {"thermometer", V_NAME, false, {0}},
+    [K_PIPETTE_ID] = {"pipette_id", V_NAME, false, {0}},
+    [K_SCALE] = {"reading_scale", V_SCALE, false, {0}},
+    [K_DEPTH_LINE] = {"depth_line_mm", V_NUM2, false, {"effective depth line", "millimetres", "163.2"}},
+    [K_MENISCUS] = {"meniscus_correction", V_NUM, false,
+                    {"meniscus correction", "reading units", "0.5"}},
+    [K_COMPOSITE] = {"composite_correction", V_NUM, false,
+                     {"composite correction", "reading units", "5.5"}},
+    [K_PIPETTE_VOLUME] = {"pipette_volume_ml", V_NUM, false, {"pipette volume", "millilitres", "25"}},
+    [K_DISPERSANT] = {"dispersant_mass_g", V_NUM, false, {"dispersant mass", "grams", "2.5"}},
+    [K_LIQUID_LIMIT] = {"liquid_limit_pct", V_NUM, true, {"liquid limit", "percent", "42"}},
+    [K_PLASTIC_LIMIT] = {"plastic_limit_pct", V_NUM, true, {"plastic limit", "percent", "21"}},
+    [K_NATURAL_MOISTURE] = {"natural_moisture_pct", V_NUM, true,
+                            {"natural moisture content", "percent", "18.5"}},
+    [K_STANDARD] = {"standard", V_STANDARD, false, {0}},
+    [K_U_READING] = {"u_reading", V_NUM, true, {"reading uncertainty", "reading units", "0.25"}},
+    [K_U_TEMP] = {"u_temp_c", V_NUM, true, {"temperature uncertainty", "degrees Celsius", "0.2"}},
+    [K_U_ELAPSED] = {"u_elapsed_min", V_NUM, true, {"elapsed-time uncertainty", "minutes", "0.05"}},
+    [K_U_MASS] = {"u_mass_g", V_NUM, true, {"mass uncertainty", "grams", "0.01"}},
+    [K_U_PARTICLE_DENSITY] = {"u_particle_density_mg_m3", V_NUM, true,
+                              {"particle density uncertainty", "Mg/m3", "0.02"}},
+    [K_U_BLANK] = {"u_blank_reading", V_NUM, true, {"blank reading uncertainty", "reading units", "0.25"}},
+    [K_U_MENISCUS] = {"u_meniscus_correction", V_NUM, true,
+                      {"meniscus correction uncertainty", "reading units", "0.1"}},
+    [K_U_PIPETTE_VOLUME] = {"u_pipette_volume_ml", V_NUM, true,
+                            {"pipette volume uncertainty", "millilitres", "0.03"}},
+    [K_U_SOLIDS] = {"u_solids_g", V_NUM, true, {"pipette solids uncertainty", "grams", "0.0002"}},
+    [K_U_DEPTH] = {"u_depth_mm", V_NUM, true, {"sampling depth uncertainty", "millimetres", "1"}},
+};
+
+/* ---- row kinds ------------------------------------------------------------------- */
+
+enum kind { R_TEST, R_SIEVE, R_FINE_SIEVE, R_READING, R_PIPETTE, R_COUNT };
+
+struct kindinfo {
+    const char *name;
+    size_t min_fields, max_fields; /* the kind included */
+    const char *expected;          /* "expected ..." in the field-count message */
+};
+
+static const struct kindinfo KINDS[R_COUNT] = {
+    [R_TEST] = {"test", 3, (size_t)-1, "3 or more (key, value[, value])"},
+    [R_SIEVE] = {"sieve", 3, 3, "3 (aperture_mm, retained_g)"},
+    [R_FINE_SIEVE] = {"fine_sieve", 3, 3, "3 (aperture_mm, retained_g)"},
+    [R_READING] = {"reading", 4, 5, "4 or 5 (elapsed_min, reading, temp_c[, blank_reading])"},
+    [R_PIPETTE] = {"pipette", 5, 5, "5 (elapsed_min, temp_c, depth_mm, solids_g)"},
+};
+
+static const struct numspec NS_ELAPSED = {"elapsed time", "minutes", "2.5"};
+static const struct numspec NS_READING = {"hydrometer reading", "the reading in scale units", "24.5"};
+static const struct numspec NS_TEMP = {"temperature", "degrees Celsius", "20.5"};
+static const struct numspec NS_BLANK = {"blank reading", "the reading in scale units", "5.5"};
+static const struct numspec NS_APERTURE = {"sieve aperture", "millimetres", "0.425"};
+static const struct numspec NS_RETAINED = {"retained mass", "grams", "12.37"};
+static const struct numspec NS_DEPTH = {"sampling depth", "millimetres", "100"};
+static const struct numspec NS_SOLIDS = {"pipette solids", "grams", "0.2483"};
+
+/* ---- parser state ---------------------------------------------------------------- */
+
+/* A position in the text: byte index and the line/column of that byte. */
+struct cursor {
+    size_t i;
+    unsigned line, col;
+};
+
+struct field {
+    char text[FIELD_TEXT_MAX]; /* trimmed of blanks, truncated */
+    size_t len;                /* trimmed length before truncation */
+    unsigned line, col;
+};
+
+struct rp {
+    const unsigned char *s;
+    size_t n;
+    struct cursor cur;
+    struct csv_parser csv;
+    unsigned char delim, other;
+    unsigned delim_line;
+
+    bool row_open;
+    bool fpending; /* the next non-blank byte starts the current field */
+    unsigned fline, fcol;
+    struct field f[ROW_FIELDS_MAX];
+    size_t nf;     /* fields in the current row (all, not only those kept) */
+    size_t nf_eff; /* fields up to the last non-blank one */
+
+    struct sg_record *rec;
+    struct sg_diag_list *diags;
+    struct sg_error *err;
+    size_t nprob;
+    size_t rows;
+    bool syntax;    /* a syntax, format or value-text problem was found */
+    bool value_bad; /* a value problem was found */
+    bool stop;
+    enum sg_status fatal; /* SG_ENOMEM or SG_ELIMIT, else SG_OK */
+    unsigned key_line[K_COUNT];
+};
+
+/* ---- small helpers --------------------------------------------------------------- */
+
+static bool is_blank(unsigned char c)
+{
+    return c == ' ' || c == '\t';
+}
+
+static int lower(int c)
+{
+    return c >= 'A' && c <= 'Z' ? c - 'A' + 'a' : c;
+}
+
+static bool same_word(const char *a, const char *b)
+{
+    for (; *a != '\0' && *b != '\0'; a++, b++)
+        if (lower((unsigned char)*a) != lower((unsigned char)*b))
+            return false;
+    return *a == *b;
+}
+
+/* Moves the cursor over one byte, keeping line and column (columns count
+ * characters: UTF-8 continuation bytes do not advance it; CR LF is one line end). */
+static void step(struct cursor *c, const unsigned char *s, size_t n)
+{
+    const unsigned char b = s[c->i];
+    if (b == '\n' || (b == '\r' && (c->i + 1 >= n || s[c->i + 1] != '\n'))) {
+        c->line++;
+        c->col = 1;
+    } else if ((b & 0xC0u) != 0x80u && b != '\r') {
+        c->col++;
+    }
+    c->i++;
+}
+
+/* Moves the cursor past the end of the current line. */
+static void skip_line(struct cursor *c, const unsigned char *s, size_t n)
+{
+    const unsigned line = c->line;
+    while (c->i < n && c->line == line)
+        step(c, s, n);
+}
+
+/* Copies text for a message: at most SHOW_CHARS characters, "..." if cut. */
+static const char *show(const char *text, char out[SHOW_BUF])
+{
+    size_t i = 0, chars = 0;
+    while (text[i] != '\0' && chars < SHOW_CHARS) {
+        i++;
+        while ((text[i] & 0xC0) == 0x80)
+            i++;
+        chars++;
+    }
+    memcpy(out, text, i);
+    if (text[i] != '\0') {
+        memcpy(out + i, "...", 4);
+    } else {
+        out[i] = '\0';
+    }
+    return out;
+}
+
+/* Case-insensitive Levenshtein distance over the first NAME_CMP_MAX bytes. */
+static size_t edit_distance(const char *a, const char *b)
+{
+    size_t la = strlen(a), lb = strlen(b);
+    if (la > NAME_CMP_MAX)
+        la = NAME_CMP_MAX;
+    if (lb > NAME_CMP_MAX)
+        lb = NAME_CMP_MAX;
+    size_t prev[NAME_CMP_MAX + 1], cur[NAME_CMP_MAX + 1];
+    for (size_t j = 0; j <= lb; j++)
+        prev[j] = j;
+    for (size_t i = 1; i <= la; i++) {
+        cur[0] = i;
+        for (size_t j = 1; j <= lb; j++) {
+            const size_t sub = prev[j - 1] + (lower((unsigned char)a[i - 1]) != lower((unsigned char)b[j - 1]));
+            const size_t del = prev[j] + 1, ins = cur[j - 1] + 1;
+            cur[j] = sub < del ? (sub < ins ? sub : ins) : (del < ins ? del : ins);
+        }
+        memcpy(prev, cur, (lb + 1) * sizeof *prev);
+    }
+    return prev[lb];
+}
+
+/* ---- problems -------------------------------------------------------------------- */
+
+static void add_problem(struct rp *p, const struct sg_error *e)
+{
+    if (p->stop)
+        return;
+    if (e->code == SG_EPARSE)
+        p->syntax = true;
+    else
+        p->value_bad = true;
+    if (p->nprob == 0 && p->err != NULL)
+        *p->err = *e;
+    p->nprob++;
+    if (sg_diag_add(p->diags, e) != SG_OK) {
+        p->fatal = SG_ENOMEM;
+        p->stop = true;
+        return;
+    }
+    if (p->nprob >= SG_RECORDIO_MAX_DIAGS) {
+        struct sg_error note;
+        sg_error_set(&note, e->code, e->line, 0,
+                     "too many problems: stopped after %u (fix these and check the file again)",
+                     SG_RECORDIO_MAX_DIAGS);
+        if (sg_diag_add(p->diags, &note) != SG_OK)
+            p->fatal = SG_ENOMEM;
+        p->stop = true;
+    }
+}
+
+#if defined(__GNUC__)
+__attribute__((format(printf, 5, 6)))
+#endif
+static void problem(struct rp *p, enum sg_status code, unsigned line, unsigned col, const char *fmt, ...)
+{
+    if (p->stop)
+        return;
+    struct sg_error e;
+    e.code = code;
+    e.line = line;
+    e.col = col;
+    va_list ap;
+    va_start(ap, fmt);
+    (void)vsnprintf(e.msg, sizeof e.msg, fmt, ap);
+    va_end(ap);
+    add_problem(p, &e);
+}
+
+static void fatal(struct rp *p, enum sg_status code)
+{
+    if (p->fatal == SG_OK)
+        p->fatal = code;
+    p->stop = true;
+}
+
+/* ---- numbers --------------------------------------------------------------------- */
+
+enum numerr { NUM_OK, NUM_EMPTY, NUM_WORD, NUM_HEX, NUM_UNIT, NUM_GROUPING, NUM_COMMA, NUM_RANGE, NUM_BAD };
+
+static bool is_digit(unsigned char c)
+{
+    return c >= '0' && c <= '9';
+}
+
+static bool is_letter(unsigned char c)
+{
+    return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z');
+}
+
+/* Length of the longest prefix of s matching [+-]?(d+(.d*)?|.d+)([eE][+-]?d+)?,
+ * 0 if none; *digits tells whether a mantissa digit was seen. */
+static size_t number_prefix(const char *s, bool *digits)
+{
+    size_t i = 0, nd = 0;
+    if (s[i] == '+' || s[i] == '-')
+        i++;
+    while (is_digit((unsigned char)s[i]))
+        i++, nd++;
+    if (s[i] == '.') {
+        size_t j = i + 1;
+        while (is_digit((unsigned char)s[j]))
+            j++, nd++;
+        if (nd > 0)
+            i = j;
+    }
+    *digits = nd > 0;
+    if (nd == 0)
+        return 0;
+    if (s[i] == 'e' || s[i] == 'E') {
+        size_t j = i + 1;
+        if (s[j] == '+' || s[j] == '-')
+            j++;
+        if (is_digit((unsigned char)s[j])) {
+            while (is_digit((unsigned char)s[j]))
+                j++;
+            i = j;
+        }
+    }
+    return i;
+}
+
+/* A space-like separator inside a number: blank, apostrophe, U+00A0, U+202F. */
+static size_t group_mark_len(const char *s)
+{
+    const unsigned char *u = (const unsigned char *)s;
+    if (u[0] == ' ' || u[0] == '\t' || u[0] == '\'')
+        return 1;
+    if (u[0] == 0xC2 && u[1] == 0xA0)
+        return 2;
+    if (u[0] == 0xE2 && u[1] == 0x80 && u[2] == 0xAF)
+        return 3;
+    return 0;
+}
+
+/* Parses a plain decimal number (field already trimmed). With decimal_comma
+ * one ',' is taken as the decimal mark. */
+static enum numerr parse_number(const struct field *f, bool decimal_comma, double *out)
+{
+    if (f->len == 0)
+        return NUM_EMPTY;
+    if (f->len >= NUMBER_TEXT_MAX)
+        return NUM_BAD;
+    char buf[NUMBER_TEXT_MAX];
+    memcpy(buf, f->text, f->len + 1);
+
+    const char *q = buf + (buf[0] == '+' || buf[0] == '-');
+    if (same_word(q, "nan") || same_word(q, "inf") || same_word(q, "infinity"))
+        return NUM_WORD;
+    if (q[0] == '0' && (q[1] == 'x' || q[1] == 'X'))
+        return NUM_HEX;
+
+    size_t dots = 0, commas = 0;
+    for (const char *c = buf; *c != '\0'; c++) {
+        dots += *c == '.';
+        commas += *c == ',';
+    }
+    if (commas > 0 && !decimal_comma)
+        return dots == 0 && commas == 1 ? NUM_COMMA : NUM_GROUPING;
+    if (dots + commas > 1)
+        return NUM_GROUPING;
+    if (commas == 1)
+        *strchr(buf, ',') = '.';
+
+    bool digits = false;
+    const size_t k = number_prefix(buf, &digits);
+    if (k == 0 || buf[k] != '\0') {
+        if (k == 0)
+            return NUM_BAD;
+        const char *rest = buf + k;
+        const size_t g = group_mark_len(rest);
+        if (g > 0 && is_digit((unsigned char)rest[g]))
+            return NUM_GROUPING;
+        const char *r = rest + g;
+        while (*r == ' ' || *r == '\t')
+            r++;
+        const unsigned char u0 = (unsigned char)r[0], u1 = (unsigned char)r[1];
+        if ((is_letter(u0) && !(rest == r && (u0 == 'e' || u0 == 'E'))) || u0 == '%' ||
+            (u0 == 0xC2 && (u1 == 0xB0 || u1 == 0xB5)))
+            return NUM_UNIT;
+        return NUM_BAD;
+    }
+
+    errno = 0;
+    char *end = NULL;
+    const double v = strtod(buf, &end);
+    if (end != buf + k)
+        return NUM_BAD;
+    if (!isfinite(v) || (errno == ERANGE && fabs(v) > 1.0))
+        return NUM_RANGE;
+    *out = v;
+    return NUM_OK;
+}
+
+/* Parses field f as a number described by ns; reports and returns false on failure. */
+static bool number(struct rp *p, const struct field *f, const struct numspec *ns, double *out)
+{
+    const enum numerr e = parse_number(f, p->delim == ';', out);
+    if (e == NUM_OK)
+        return true;
+    char t[SHOW_BUF];
+    show(f->text, t);
+    switch (e) {
+    case NUM_EMPTY:
+        problem(p, SG_EPARSE, f->line, f->col, "%s is empty (write %s as a decimal number, e.g. %s)", ns->what,
+                ns->unit_words, ns->example);
+        break;
+    case NUM_HEX:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' is not a number: hexadecimal is not accepted (write %s as a decimal number, e.g. %s)",
+                ns->what, t, ns->unit_words, ns->example);
+        break;
+    case NUM_UNIT:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' is not a number (remove the unit or text after it: write %s as a plain "
+                "number, e.g. %s)",
+                ns->what, t, ns->unit_words, ns->example);
+        break;
+    case NUM_GROUPING:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' is not a number (remove thousands separators and use one decimal mark: "
+                "write %s as a decimal number, e.g. %s)",
+                ns->what, t, ns->unit_words, ns->example);
+        break;
+    case NUM_COMMA:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' is not a number (with ',' as the field separator a number has '.' as its decimal "
+                "mark and no thousands separator, e.g. %s; or separate the fields with ';')",
+                ns->what, t, ns->example);
+        break;
+    case NUM_RANGE:
+        problem(p, SG_EPARSE, f->line, f->col, "%s '%s' is out of range (write %s as a decimal number, e.g. %s)",
+                ns->what, t, ns->unit_words, ns->example);
+        break;
+    case NUM_WORD:
+    case NUM_BAD:
+    case NUM_OK:
+        problem(p, SG_EPARSE, f->line, f->col, "%s '%s' is not a number (write %s as a decimal number, e.g. %s)",
+                ns->what, t, ns->unit_words, ns->example);
+        break;
+    }
+    return false;
+}
+
+/* ---- names and words ------------------------------------------------------------- */
+
+/* 0 ok, 1 empty, 2 too long, 3 a character outside [A-Za-z0-9._-]. */
+static int check_name(const struct field *f)
+{
+    if (f->len == 0)
+        return 1;
+    if (f->len >= SG_NAME_MAX)
+        return 2;
+    for (size_t i = 0; i < f->len; i++) {
+        const unsigned char c = (unsigned char)f->text[i];
+        if (!(is_letter(c) || is_digit(c) || c == '.' || c == '_' || c == '-'))
+            return 3;
+    }
+    return 0;
+}
+
+static bool name_value(struct rp *p, const struct field *f, const char *what, const char *hint, char *dst)
+{
+    char t[SHOW_BUF];
+    switch (check_name(f)) {
+    case 0:
+        memcpy(dst, f->text, f->len + 1); /* f->len < SG_NAME_MAX == SG_ID_MAX */
+        return true;
+    case 1:
+        problem(p, SG_EPARSE, f->line, f->col, "%s is empty (%s)", what, hint);
+        return false;
+    case 2:
+        problem(p, SG_EPARSE, f->line, f->col, "%s '%s' is %zu characters long, at most %d are allowed (%s)",
+                what, show(f->text, t), f->len, SG_NAME_MAX - 1, hint);
+        return false;
+    default:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' has characters other than letters, digits, '.', '_' and '-' (%s)", what,
+                show(f->text, t), hint);
+        return false;
+    }
+}
+
+/* ---- rows ------------------------------------------------------------------------ */
+
+static struct sg_srcpos pos_of(const struct field *f)
+{
+    return (struct sg_srcpos){f->line, f->col};
+}
+
+static void key_slot(struct sg_record *r, enum key k, double **num, bool **has, struct sg_srcpos **pos)
+{
+    *num = NULL;
+    *has = NULL;
+    *pos = NULL;
+    switch (k) {
+    case K_ID: *pos = &r->pos_id; break;
+    case K_METHOD: *pos = &r->pos_method; break;
+    case K_DATE: *pos = &r->pos_date; break;
+    case K_PARTICLE_DENSITY: *num = &r->particle_density_mg_m3; *pos = &r->pos_particle_density; break;
+    case K_SAMPLE_MASS: *num = &r->sample_dry_mass_g; *pos = &r->pos_sample_mass; break;
+    case K_SPLIT_APERTURE: *num = &r->split_aperture_mm; *pos = &r->pos_split_aperture; break;
+    case K_SPECIMEN_MASS: *num = &r->specimen_dry_mass_g; *pos = &r->pos_specimen_mass; break;
+    case K_VOLUME: *num = &r->suspension_volume_ml; *pos = &r->pos_volume; break;
+    case K_HYDROMETER: *pos = &r->pos_hydrometer; break;
+    case K_CYLINDER: *pos = &r->pos_cylinder; break;
+    case K_THERMOMETER: *pos = &r->pos_thermometer; break;
+    case K_PIPETTE_ID: *pos = &r->pos_pipette_id; break;
+    case K_SCALE: *pos = &r->pos_scale; break;
+    case K_DEPTH_LINE: *num = r->depth_line_mm; *has = &r->has_depth_line; *pos = &r->pos_depth_line; break;
+    case K_MENISCUS: *num = &r->meniscus_correction; *has = &r->has_meniscus; *pos = &r->pos_meniscus; break;
+    case K_COMPOSITE:
+        *num = &r->composite_correction; *has = &r->has_composite; *pos = &r->pos_composite; break;
+    case K_PIPETTE_VOLUME:
+        *num = &r->pipette_volume_ml; *has = &r->has_pipette_volume; *pos = &r->pos_pipette_volume; break;
+    case K_DISPERSANT:
+        *num = &r->dispersant_mass_g; *has = &r->has_dispersant; *pos = &r->pos_dispersant; break;
+    case K_LIQUID_LIMIT: *num = &r->liquid_limit_pct; *has = &r->has_liquid_limit; break;
+    case K_PLASTIC_LIMIT: *num = &r->plastic_limit_pct; *has = &r->has_plastic_limit; break;
+    case K_NATURAL_MOISTURE: *num = &r->natural_moisture_pct; *has = &r->has_natural_moisture; break;
+    case K_STANDARD: *pos = &r->pos_standard; break;
+    case K_U_READING: *num = &r->u.reading; break;
+    case K_U_TEMP: *num = &r->u.temp_c; break;
+    case K_U_ELAPSED: *num = &r->u.elapsed_min; break;
+    case K_U_MASS: *num = &r->u.mass_g; break;
+    case K_U_PARTICLE_DENSITY: *num = &r->u.particle_density_mg_m3; break;
+    case K_U_BLANK: *num = &r->u.blank_reading; break;
+    case K_U_MENISCUS: *num = &r->u.meniscus_correction; break;
+    case K_U_PIPETTE_VOLUME: *num = &r->u.pipette_volume_ml; break;
+    case K_U_SOLIDS: *num = &r->u.solids_g; break;
+    case K_U_DEPTH: *num = &r->u.depth_mm; break;
+    case K_COUNT: break;
+    }
+}
+
+/* Looks a word up in a list of names (case-insensitive); returns its index or
+ * n, with *nearest the index of the closest name by edit distance. */
+static size_t lookup(const char *word, const char *const *names, size_t n, size_t *nearest)
+{
+    size_t best = 0, best_d = (size_t)-1;
+    for (size_t i = 0; i < n; i++) {
+        if (same_word(word, names[i]))
+            return i;
+        const size_t d = edit_distance(word, names[i]);
+        if (d < best_d) {
+            best_d = d;
+            best = i;
+        }
+    }
+    *nearest = best;
+    return n;
+}
+
+static void test_row(struct rp *p)
+{
+    const struct field *fk = &p->f[1];
+    char t[SHOW_BUF];
+    if (fk->len == 0) {
+        problem(p, SG_EPARSE, fk->line, fk->col, "key is empty (write 'test,<key>,<value>', e.g. 'test,id,BH1-2.5')");
+        return;
+    }
+    const char *names[K_COUNT];
+    for (size_t i = 0; i < K_COUNT; i++)
+        names[i] = KEYS[i].name;
+    size_t near = 0;
+    const size_t ki = lookup(fk->text, names, K_COUNT, &near);
+    if (ki == K_COUNT) {
+        problem(p, SG_EPARSE, fk->line, fk->col, "unknown key '%s' (did you mean '%s'?)", show(fk->text, t),
+                KEYS[near].name);
+        return;
+    }
+    const enum key k = (enum key)ki;
+    const struct keyinfo *ko = &KEYS[k];
+    if (p->key_line[k] != 0) {
+        problem(p, SG_EPARSE, fk->line, fk->col, "key '%s' is given twice (first on line %u; keep one)", ko->name,
+                p->key_line[k]);
+        return;
+    }
+    p->key_line[k] = fk->line;
+
+    const size_t want = ko->type == V_NUM2 ? 2 : 1, nvals = p->nf_eff - 2;
+    if (nvals < want) {
+        problem(p, SG_EPARSE, fk->line, fk->col,
+                "key '%s' needs two values, 1 given (write 'test,depth_line_mm,<depth at reading 0 in mm>,"
+                "<change per reading unit in mm>')",
+                ko->name);
+        return;
+    }
+    if (nvals > want) {
+        const struct field *fx = &p->f[2 + want];
+        problem(p, SG_EPARSE, fx->line, fx->col, "key '%s' takes %s value, %zu given (remove the extra fields)",
+                ko->name, want == 1 ? "one" : "two", nvals);
+        return;
+    }
+
+    struct sg_record *r = p->rec;
+    const struct field *fv = &p->f[2];
+    double *num = NULL;
+    bool *has = NULL;
+    struct sg_srcpos *pos = NULL;
+    key_slot(r, k, &num, &has, &pos);
+    bool ok = false;
+    switch (ko->type) {
+    case V_ID:
+        ok = name_value(p, fv, "test id", "it names the output files; e.g. BH1-2.5", r->id);
+        break;
+    case V_NAME: {
+        static const char *const what[] = {"hydrometer ID", "cylinder ID", "thermometer ID", "pipette ID"};
+        char *const dst[] = {r->hydrometer, r->cylinder, r->thermometer, r->pipette_id};
+        const size_t w = k == K_HYDROMETER ? 0 : k == K_CYLINDER ? 1 : k == K_THERMOMETER ? 2 : 3;
+        ok = name_value(p, fv, what[w], "use the instrument's ID in the calibration register", dst[w]);
+        break;
+    }
+    case V_METHOD:
+        if (same_word(fv->text, "hydrometer"))
+            r->method = SG_METHOD_HYDROMETER, ok = true;
+        else if (same_word(fv->text, "pipette"))
+            r->method = SG_METHOD_PIPETTE, ok = true;
+        else
+            problem(p, SG_EPARSE, fv->line, fv->col, "method '%s' is not known (write hydrometer or pipette)",
+                    show(fv->text, t));
+        break;
+    case V_SCALE:
+        if (same_word(fv->text, "g_per_l"))
+            r->scale = SG_SCALE_G_PER_L, ok = true;
+        else if (same_word(fv->text, "density"))
+            r->scale = SG_SCALE_DENSITY, ok = true;
+        else
+            problem(p, SG_EPARSE, fv->line, fv->col,
+                    "reading scale '%s' is not known (write g_per_l for grams of soil per litre or density "
+                    "for (density - 1) x 1000)",
+                    show(fv->text, t));
+        break;
+    case V_STANDARD:
+        for (int s = SG_STANDARD_ASTM_D7928; s <= SG_STANDARD_ISO17892_4 && !ok; s++)
+            if (same_word(fv->text, sg_standard_name((enum sg_standard)s)))
+                r->standard = (enum sg_standard)s, ok = true;
+        if (!ok)
+            problem(p, SG_EPARSE, fv->line, fv->col,
+                    "standard '%s' is not known (write astm-d7928, bs1377-2 or iso17892-4, or leave the key "
+                    "out for exact physics)",
+                    show(fv->text, t));
+        break;
+    case V_DATE: {
+        struct sg_error de;
+        if (sg_date_parse(fv->text, &r->date, &de) == SG_OK)
+            ok = true;
+        else
+            problem(p, SG_EPARSE, fv->line, fv->col, "%s", de.msg);
+        break;
+    }
+    case V_NUM2: {
+        double v[2];
+        const bool a = number(p, &p->f[2], &ko->num, &v[0]);
+        const bool b = number(p, &p->f[3], &ko->num, &v[1]);
+        if (a && b) {
+            num[0] = v[0];
+            num[1] = v[1];
+            ok = true;
+        }
+        break;
+    }
+    case V_NUM: {
+        double v = 0.0;
+        if (number(p, fv, &ko->num, &v)) {
+            if (ko->nonneg && v < 0.0) {
+                problem(p, SG_EINVAL, fv->line, fv->col, "%s %g %s must not be negative", ko->num.what, v,
+                        ko->num.unit_words);
+            } else {
+                *num = v;
+                ok = true;
+            }
+        }
+        break;
+    }
+    }
+    if (ok) {
+        if (has != NULL)
+            *has = true;
+        if (pos != NULL)
+            *pos = pos_of(fv);
+    }
+}
+
+static void sieve_row(struct rp *p, bool fine)
+{
+    const struct field *fa = &p->f[1], *fm = &p->f[2];
+    struct sg_sieve_row row = {.pos = pos_of(fa)};
+    bool ok = true;
+    if (same_word(fa->text, "pan")) {
+        row.aperture_mm = SG_SIEVE_PAN_MM;
+    } else if (number(p, fa, &NS_APERTURE, &row.aperture_mm)) {
+        if (!(row.aperture_mm > 0.0)) {
+            problem(p, SG_EINVAL, fa->line, fa->col, "sieve aperture %g mm must be positive (write 'pan' for the pan)",
+                    row.aperture_mm);
+            ok = false;
+        }
+    } else {
+        ok = false;
+    }
+    ok = number(p, fm, &NS_RETAINED, &row.retained_g) && ok;
+    if (ok && (fine ? sg_record_add_fine_sieve(p->rec, row) : sg_record_add_sieve(p->rec, row)) != SG_OK)
+        fatal(p, SG_ENOMEM);
+}
+
+static void reading_row(struct rp *p)
+{
+    struct sg_reading_row row = {.pos = pos_of(&p->f[1])};
+    bool ok = number(p, &p->f[1], &NS_ELAPSED, &row.elapsed_min);
+    ok = number(p, &p->f[2], &NS_READING, &row.reading) && ok;
+    ok = number(p, &p->f[3], &NS_TEMP, &row.temp_c) && ok;
+    if (p->nf_eff == 5) {
+        row.has_blank = true;
+        ok = number(p, &p->f[4], &NS_BLANK, &row.blank_reading) && ok;
+    }
+    if (ok && sg_record_add_reading(p->rec, row) != SG_OK)
+        fatal(p, SG_ENOMEM);
+}
+
+static void pipette_row(struct rp *p)
+{
+    struct sg_pipette_row row = {.pos = pos_of(&p->f[1])};
+    bool ok = number(p, &p->f[1], &NS_ELAPSED, &row.elapsed_min);
+    ok = number(p, &p->f[2], &NS_TEMP, &row.temp_c) && ok;
+    ok = number(p, &p->f[3], &NS_DEPTH, &row.depth_mm) && ok;
+    ok = number(p, &p->f[4], &NS_SOLIDS, &row.solids_g) && ok;
+    if (ok && sg_record_add_pipette(p->rec, row) != SG_OK)
+        fatal(p, SG_ENOMEM);
+}
+
+static void process_row(struct rp *p)
+{
+    const size_t n = p->nf_eff;
+    if (n == 0)
+        return; /* a row of empty fields: a blank line from a spreadsheet */
+    const struct field *f0 = &p->f[0];
+    if (f0->text[0] == '#')
+        return; /* a comment that a spreadsheet put in quotes */
+    if (++p->rows > SG_RECORDIO_MAX_ROWS) {
+        problem(p, SG_ELIMIT, f0->line, f0->col, "more than %u data rows (a test record holds one test; check the file)",
+                SG_RECORDIO_MAX_ROWS);
+        fatal(p, SG_ELIMIT);
+        return;
+    }
+    /* Mixed separators: the other separator shows up inside a field. With ';'
+     * a comma may be a decimal comma, so only the row kind is looked at. */
+    const size_t look = p->delim == ',' ? (n < ROW_FIELDS_MAX ? n : ROW_FIELDS_MAX) : 1;
+    for (size_t i = 0; i < look; i++) {
+        const char *o = memchr(p->f[i].text, p->other, strlen(p->f[i].text));
+        if (o != NULL) {
+            problem(p, SG_EPARSE, p->f[i].line, p->f[i].col,
+                    "line %u uses '%c' as the separator but line %u set '%c' (the first data row decides; "
+                    "use one separator in the whole file)",
+                    p->f[i].line, p->other, p->delim_line, p->delim);
+            return;
+        }
+    }
+    char t[SHOW_BUF];
+    if (f0->len == 0) {
+        problem(p, SG_EPARSE, f0->line, f0->col,
+                "row kind is empty (the first field of a row is test, sieve, fine_sieve, reading or pipette)");
+        return;
+    }
+    const char *names[R_COUNT];
+    for (size_t i = 0; i < R_COUNT; i++)
+        names[i] = KINDS[i].name;
+    size_t near = 0;
+    const size_t ki = lookup(f0->text, names, R_COUNT, &near);
+    if (ki == R_COUNT) {
+        problem(p, SG_EPARSE, f0->line, f0->col,
+                "unknown row kind '%s' (did you mean '%s'? rows are test, sieve, fine_sieve, reading and pipette)",
+                show(f0->text, t), KINDS[near].name);
+        return;
+    }
+    const struct kindinfo *kd = &KINDS[ki];
+    if (n < kd->min_fields || n > kd->max_fields) {
+        const struct field *at = n > kd->max_fields && kd->max_fields < ROW_FIELDS_MAX ? &p->f[kd->max_fields] : f0;
+        problem(p, SG_EPARSE, at->line, at->col, "row '%s' has %zu field%s, expected %s", kd->name, n,
+                n == 1 ? "" : "s", kd->expected);
+        return;
+    }
+    switch ((enum kind)ki) {
+    case R_TEST: test_row(p); break;
+    case R_SIEVE: sieve_row(p, false); break;
+    case R_FINE_SIEVE: sieve_row(p, true); break;
+    case R_READING: reading_row(p); break;
+    case R_PIPETTE: pipette_row(p); break;
+    case R_COUNT: break;
+    }
+}
+
+/* ---- libcsv callbacks ------------------------------------------------------------ */
+
+static void cb_field(void *data, size_t len, void *ctx)
+{
+    struct rp *p = ctx;
+    const unsigned char *b = data;
+    size_t k = p->nf++;
+    while (len > 0 && is_blank(b[0]))
+        b++, len--;
+    while (len > 0 && is_blank(b[len - 1]))
+        len--;
+    if (len > 0)
+        p->nf_eff = k + 1;
+    if (k < ROW_FIELDS_MAX) {
+        struct field *f = &p->f[k];
+        const size_t keep = len < FIELD_TEXT_MAX - 1 ? len : FIELD_TEXT_MAX - 1;
+        if (keep > 0)
+            memcpy(f->text, b, keep);
+        f->text[keep] = '\0';
+        f->len = len;
+        f->line = p->fline;
+        f->col = p->fcol;
+    }
+    /* The next field starts after this byte (a separator). */
+    p->fpending = true;
+    p->fline = p->cur.line;
+    p->fcol = p->cur.col + 1;
+}
+
+static void cb_row(int c, void *ctx)
+{
+    (void)c;
+    struct rp *p = ctx;
+    if (!p->stop)
+        process_row(p);
+    p->nf = 0;
+    p->nf_eff = 0;
+    p->row_open = false;
+}
+
+/* ---- the text as a whole --------------------------------------------------------- */
+
+/* Length of the valid UTF-8 sequence at s[0..n) (Unicode 15, table 3-7), 0 if invalid. */
+static size_t utf8_len(const unsigned char *s, size_t n)
+{
+    const unsigned char b = s[0];
+    size_t len;
+    unsigned char lo = 0x80, hi = 0xBF;
+    if (b < 0x80)
+        return 1;
+    if (b >= 0xC2 && b <= 0xDF)
+        len = 2;
+    else if (b >= 0xE0 && b <= 0xEF) {
+        len = 3;
+        if (b == 0xE0)
+            lo = 0xA0;
+        else if (b == 0xED)
+            hi = 0x9F;
+    } else if (b >= 0xF0 && b <= 0xF4) {
+        len = 4;
+        if (b == 0xF0)
+            lo = 0x90;
+        else if (b == 0xF4)
+            hi = 0x8F;
+    } else {
+        return 0;
+    }
+    if (n < len || s[1] < lo || s[1] > hi)
+        return 0;
+    for (size_t i = 2; i < len; i++)
+        if (s[i] < 0x80 || s[i] > 0xBF)
+            return 0;
+    return len;
+}
+
+/* Refuses binary and non-UTF-8 text with one located message. */
+static bool check_text(struct rp *p)
+{
+    if (p->n >= 2 && ((p->s[0] == 0xFF && p->s[1] == 0xFE) || (p->s[0] == 0xFE && p->s[1] == 0xFF))) {
+        problem(p, SG_EPARSE, 1, 1, "the file is UTF-16 text, not UTF-8; save the file as UTF-8");
+        return false;
+    }
+    struct cursor c = p->cur;
+    while (c.i < p->n) {
+        const unsigned char b = p->s[c.i];
+        if (b == 0 || (b < 0x20 && b != '\t' && b != '\n' && b != '\r') || b == 0x7F) {
+            problem(p, SG_EPARSE, c.line, c.col,
+                    "not a text file (byte 0x%02X at line %u, column %u): give a test record saved as CSV text", b,
+                    c.line, c.col);
+            return false;
+        }
+        const size_t len = utf8_len(p->s + c.i, p->n - c.i);
+        if (len == 0) {
+            problem(p, SG_EPARSE, c.line, c.col, "byte 0x%02X at line %u, column %u is not UTF-8 text; save the file "
+                    "as UTF-8%s", b, c.line, c.col,
+                    b == 0xB0 ? " (0xB0 is the degree sign in Latin-1 and Windows-1252)" : "");
+            return false;
+        }
+        for (size_t k = 0; k < len; k++)
+            step(&c, p->s, p->n);
+    }
+    return true;
+}
+
+/* If the line at c is blank or a comment, moves c past it and returns true. */
+static bool skip_if_comment(struct cursor *c, const unsigned char *s, size_t n)
+{
+    size_t j = c->i;
+    while (j < n && is_blank(s[j]))
+        j++;
+    if (j < n && s[j] != '#' && s[j] != '\r' && s[j] != '\n')
+        return false;
+    skip_line(c, s, n);
+    return true;
+}
+
+/* The separator: the first ',' or ';' on the first data row that has one
+ * (rows of separators alone, a spreadsheet's blank rows, are passed over). */
+static void choose_separator(struct rp *p)
+{
+    struct cursor c = p->cur;
+    p->delim = ',';
+    p->other = ';';
+    p->delim_line = 0;
+    while (c.i < p->n) {
+        if (skip_if_comment(&c, p->s, p->n))
+            continue;
+        unsigned char sep = 0;
+        bool content = false;
+        for (size_t j = c.i; j < p->n && p->s[j] != '\n' && p->s[j] != '\r'; j++) {
+            const unsigned char b = p->s[j];
+            if ((b == ',' || b == ';') && sep == 0)
+                sep = b;
+            else if (b != ',' && b != ';' && !is_blank(b))
+                content = true;
+            if (sep != 0 && content)
+                break;
+        }
+        if (sep != 0 && content) {
+            p->delim = sep;
+            p->other = sep == ',' ? ';' : ',';
+            p->delim_line = c.line;
+            return;
+        }
+        skip_line(&c, p->s, p->n);
+    }
+}
+
+static void reset_csv(struct rp *p)
+{
+    csv_free(&p->csv);
+    (void)csv_init(&p->csv, CSV_STRICT | CSV_STRICT_FINI);
+    csv_set_delim(&p->csv, p->delim);
+    p->nf = 0;
+    p->nf_eff = 0;
+    p->row_open = false;
+}
+
+/* Feeds s[from, from + len) to libcsv. at is the cursor at s[from]. On a
+ * syntax error reports it, skips the rest of the line and returns false. */
+static bool feed(struct rp *p, struct cursor at, size_t len)
+{
+    const size_t have = csv_get_buffer_size(&p->csv);
+    csv_set_blk_size(&p->csv, have > CSV_BLOCK_MIN ? have : CSV_BLOCK_MIN); /* geometric growth */
+    const size_t done = csv_parse(&p->csv, p->s + at.i, len, cb_field, cb_row, p);
+    const int e = csv_error(&p->csv);
+    if (done == len && e == CSV_SUCCESS)
+        return true;
+    if (e != CSV_EPARSE) {
+        fatal(p, SG_ENOMEM);
+        return false;
+    }
+    for (size_t k = 0; k < done; k++)
+        step(&at, p->s, p->n);
+    if (p->csv.quoted)
+        problem(p, SG_EPARSE, at.line, at.col,
+                "text after the closing quote of a field (put the whole field inside the quotes, or remove them)");
+    else
+        problem(p, SG_EPARSE, at.line, at.col,
+                "quote character inside a field (remove it, or quote the whole field and double the quotes inside)");
+    p->cur = at;
+    skip_line(&p->cur, p->s, p->n);
+    reset_csv(p);
+    return false;
+}
+
+static bool special(const struct rp *p, unsigned char c)
+{
+    return c == p->delim || c == '"' || c == '\r' || c == '\n';
+}
+
+static void split_rows(struct rp *p)
+{
+    while (p->cur.i < p->n && !p->stop) {
+        if (p->cur.col == 1 && !p->row_open) {
+            if (skip_if_comment(&p->cur, p->s, p->n))
+                continue;
+            p->fpending = true;
+            p->fline = p->cur.line;
+            p->fcol = 1;
+        }
+        const unsigned char c = p->s[p->cur.i];
+        if (special(p, c)) {
+            if (p->fpending && c == '"') {
+                p->fline = p->cur.line;
+                p->fcol = p->cur.col;
+                p->fpending = false;
+            }
+            if (c != '\r' && c != '\n')
+                p->row_open = true;
+            const struct cursor at = p->cur;
+            if (!feed(p, at, 1))
+                continue;
+            step(&p->cur, p->s, p->n);
+            if ((c == '\r' || c == '\n') && p->csv.quoted) {
+                problem(p, SG_EPARSE, p->fline, p->fcol,
+                        "quoted field is not closed on line %u (add the closing '\"', or remove the quote)", p->fline);
+                reset_csv(p);
+            }
+            continue;
+        }
+        const struct cursor at = p->cur;
+        while (p->cur.i < p->n && !special(p, p->s[p->cur.i])) {
+            if (p->fpending && !is_blank(p->s[p->cur.i])) {
+                p->fline = p->cur.line;
+                p->fcol = p->cur.col;
+                p->fpending = false;
+                p->row_open = true;
+            }
+            step(&p->cur, p->s, p->n);
+        }
+        (void)feed(p, at, p->cur.i - at.i);
+    }
+    if (p->stop)
+        return;
+    if (csv_fini(&p->csv, cb_field, cb_row, p) != 0)
+        problem(p, SG_EPARSE, p->fline, p->fcol,
+                "the file ends inside a quoted field opened at line %u, column %u (add the closing '\"')", p->fline,
+                p->fcol);
+}
+
+/* ---- checks after parsing -------------------------------------------------------- */
+
+struct aperture_at {
+    double mm;
+    unsigned line, col;
+};
+
+static int by_mm_then_line(const void *a, const void *b)
+{
+    const struct aperture_at *x = a, *y = b;
+    if (x->mm != y->mm)
+        return (x->mm < y->mm) - (x->mm > y->mm);
+    return (x->line > y->line) - (x->line < y->line);
+}
+
+static void duplicate_apertures(struct rp *p, const struct sg_sieve_row *rows, size_t n, const char *kind)
+{
+    if (n < 2)
+        return;
+    struct aperture_at *a = malloc(n * sizeof *a);
+    if (a == NULL) {
+        fatal(p, SG_ENOMEM);
+        return;
+    }
+    for (size_t i = 0; i < n; i++)
+        a[i] = (struct aperture_at){rows[i].aperture_mm, rows[i].pos.line, rows[i].pos.col};
+    qsort(a, n, sizeof *a, by_mm_then_line);
+    for (size_t i = 1; i < n; i++) {
+        if (a[i].mm != a[i - 1].mm)
+            continue;
+        if (a[i].mm == SG_SIEVE_PAN_MM)
+            problem(p, SG_EINVAL, a[i].line, a[i].col, "the %s pan is listed twice (first on line %u; merge the rows)",
+                    kind, a[i - 1].line);
+        else
+            problem(p, SG_EINVAL, a[i].line, a[i].col,
+                    "%s aperture %g mm is listed twice (first on line %u; merge the rows)", kind, a[i].mm,
+                    a[i - 1].line);
+    }
+    free(a);
+}
+
+/* Value checks that sg_record_validate() leaves out. */
+static void extra_checks(struct rp *p)
+{
+    const struct sg_record *r = p->rec;
+    duplicate_apertures(p, r->sieve, r->n_sieve, "sieve");
+    duplicate_apertures(p, r->fine_sieve, r->n_fine_sieve, "fine_sieve");
+    if (r->n_sieve == 0 && r->pos_sample_mass.line != 0 && !(r->sample_dry_mass_g > 0.0))
+        problem(p, SG_EINVAL, r->pos_sample_mass.line, r->pos_sample_mass.col,
+                "sample dry mass %g g must be positive", r->sample_dry_mass_g);
+    if (r->n_sieve == 0 && r->pos_split_aperture.line != 0 && !(r->split_aperture_mm > 0.0))
+        problem(p, SG_EINVAL, r->pos_split_aperture.line, r->pos_split_aperture.col,
+                "split aperture %g mm must be positive", r->split_aperture_mm);
+    if (r->method != SG_METHOD_PIPETTE && r->has_pipette_volume && !(r->pipette_volume_ml > 0.0))
+        problem(p, SG_EINVAL, r->pos_pipette_volume.line, r->pos_pipette_volume.col,
+                "pipette volume %g mL must be positive", r->pipette_volume_ml);
+    if (r->method != SG_METHOD_PIPETTE && r->has_dispersant && r->dispersant_mass_g < 0.0)
+        problem(p, SG_EINVAL, r->pos_dispersant.line, r->pos_dispersant.col,
+                "dispersant mass %g g must not be negative", r->dispersant_mass_g);
+    if (r->has_depth_line && !(r->depth_line_mm[0] > 0.0))
+        problem(p, SG_EINVAL, r->pos_depth_line.line, r->pos_depth_line.col,
+                "effective depth at reading 0 of %g mm must be positive (depth_line_mm is <depth at reading 0>,"
+                "<change per reading unit>)",
+                r->depth_line_mm[0]);
+}
+
+static void validate(struct rp *p)
+{
+    struct sg_diag_list vd = {0};
+    struct sg_error first;
+    sg_error_clear(&first);
+    if (sg_record_validate(p->rec, &vd, &first) != SG_OK) {
+        if (vd.n == 0) /* the list could not grow: keep the first problem at least */
+            add_problem(p, &first);
+        for (size_t i = 0; i < vd.n && !p->stop; i++)
+            add_problem(p, &vd.items[i]);
+    }
+    sg_diag_release(&vd);
+}
+
+/* ---- entry points ---------------------------------------------------------------- */
+
+enum sg_status sg_recordio_parse(const char *text, size_t len, struct sg_record *rec, struct sg_diag_list *diags,
+                                 struct sg_error *err)
+{
+    sg_error_clear(err);
+    struct rp *p = calloc(1, sizeof *p);
+    if (p == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory reading the test record");
+    p->s = (const unsigned char *)(text != NULL ? text : "");
+    p->n = text != NULL ? len : 0;
+    p->cur = (struct cursor){0, 1, 1};
+    p->rec = rec;
+    p->diags = diags;
+    p->err = err;
+    (void)csv_init(&p->csv, CSV_STRICT | CSV_STRICT_FINI);
+
+    if (p->n > SG_RECORDIO_MAX_BYTES) {
+        problem(p, SG_ELIMIT, 0, 0, "test record is %zu bytes, larger than the limit of %zu bytes (16 MiB)", p->n,
+                SG_RECORDIO_MAX_BYTES);
+        fatal(p, SG_ELIMIT);
+        goto cleanup;
+    }
+    if (p->n >= 3 && p->s[0] == 0xEF && p->s[1] == 0xBB && p->s[2] == 0xBF)
+        p->cur.i = 3; /* UTF-8 byte-order mark */
+    if (!check_text(p))
+        goto cleanup;
+    choose_separator(p);
+    csv_set_delim(&p->csv, p->delim);
+    split_rows(p);
+    if (p->stop || p->syntax)
+        goto cleanup;
+    if (p->rows == 0) {
+        problem(p, SG_EPARSE, 1, 1,
+                "no data rows: the file is empty or holds only comments (a test record has rows such as "
+                "'test,id,<test id>')");
+        goto cleanup;
+    }
+    extra_checks(p);
+    if (!p->stop)
+        validate(p);
+
+cleanup:
+    csv_free(&p->csv);
+    enum sg_status st = p->fatal != SG_OK ? p->fatal : p->syntax ? SG_EPARSE : p->value_bad ? SG_EINVAL : SG_OK;
+    if (st == SG_ENOMEM && err != NULL && (err->code == SG_OK || p->nprob == 0))
+        sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory reading the test record");
+    free(p);
+    return st;
+}
+
+static enum sg_status io_error(struct sg_error *err, const char *what, const char *path, int errnum)
+{
+    char reason[128];
+    if (strerror_r(errnum, reason, sizeof reason) != 0)
+        snprintf(reason, sizeof reason, "error %d", errnum);
+    return sg_error_set(err, SG_EIO, 0, 0, "cannot %s '%s': %s (check the path and its permissions)", what, path,
+                        reason);
+}
+
+enum sg_status sg_recordio_read_file(const char *path, char **text, size_t *len, struct sg_error *err)
+{
+    *text = NULL;
+    *len = 0;
+    enum sg_status st = SG_OK;
+    char *buf = NULL;
+    size_t n = 0;
+    int fd = open(path, O_RDONLY | O_CLOEXEC);
+    if (fd < 0)
+        return io_error(err, "open", path, errno);
+    struct stat sb;
+    if (fstat(fd, &sb) != 0) {
+        st = io_error(err, "read", path, errno);
+        goto cleanup;
+    }
+    if (S_ISDIR(sb.st_mode)) {
+        st = io_error(err, "read", path, EISDIR);
+        goto cleanup;
+    }
+    if (S_ISREG(sb.st_mode) && (unsigned long long)sb.st_size > SG_RECORDIO_MAX_BYTES) {
+        st = sg_error_set(err, SG_ELIMIT, 0, 0,
+                          "file '%s' is %lld bytes (%.1f MiB), larger than the %zu-byte (16 MiB) limit for a test "
+                          "record (give the record of one test)",
+                          path, (long long)sb.st_size, (double)sb.st_size / (1024.0 * 1024.0), SG_RECORDIO_MAX_BYTES);
+        goto cleanup;
+    }
+    /* Regular files: their size plus one byte to see the end; others grow as they go. */
+    size_t cap = S_ISREG(sb.st_mode) ? (size_t)sb.st_size + 1 : READ_CHUNK;
+    buf = malloc(cap + 1);
+    if (buf == NULL) {
+        st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory reading '%s'", path);
+        goto cleanup;
+    }
+    for (;;) {
+        if (n == cap) {
+            if (cap > SG_RECORDIO_MAX_BYTES) {
+                st = sg_error_set(err, SG_ELIMIT, 0, 0,
+                                  "file '%s' is larger than the %zu-byte (16 MiB) limit for a test record (give "
+                                  "the record of one test)",
+                                  path, SG_RECORDIO_MAX_BYTES);
+                goto cleanup;
+            }
+            size_t ncap = cap * 2 > SG_RECORDIO_MAX_BYTES + 1 ? SG_RECORDIO_MAX_BYTES + 1 : cap * 2;
+            char *nb = realloc(buf, ncap + 1);
+            if (nb == NULL) {
+                st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory reading '%s'", path);
+                goto cleanup;
+            }
+            buf = nb;
+            cap = ncap;
+        }
+        const ssize_t got = read(fd, buf + n, cap - n);
+        if (got < 0) {
+            if (errno == EINTR)
+                continue;
+            st = io_error(err, "read", path, errno);
+            goto cleanup;
+        }
+        if (got == 0)
+            break;
+        n += (size_t)got;
+    }
+    if (n > SG_RECORDIO_MAX_BYTES) {
+        st = sg_error_set(err, SG_ELIMIT, 0, 0,
+                          "file '%s' is larger than the %zu-byte (16 MiB) limit for a test record (give the record "
+                          "of one test)",
+                          path, SG_RECORDIO_MAX_BYTES);
+        goto cleanup;
+    }
+    buf[n] = '\0';
+    *text = buf;
+    *len = n;
+    buf = NULL;
+cleanup:
+    free(buf);
+    close(fd);
+    return st;
+}
+
+enum sg_status sg_recordio_load(const char *path, struct sg_record *rec, struct sg_diag_list *diags,
+                                struct sg_error *err)
+{
+    char *text = NULL;
+    size_t len = 0;
+    struct sg_error e;
+    enum sg_status st = sg_recordio_read_file(path, &text, &len, &e);
+    if (st != SG_OK) {
+        if (err != NULL)
+            *err = e;
+        (void)sg_diag_add(diags, &e);
+        return st;
+    }
+    st = sg_recordio_parse(text, len, rec, diags, err);
+    free(text);
+    return st;
+}
