@@ -1,0 +1,102 @@
+#!/usr/bin/env bash
+# make bench: batch reduction of generated archives (1,000 and 10,000 records,
+# 12 readings and 8 sieves each) with the default per-test outputs and with
+# --outputs none, best of 3 by wall time, with peak RSS; the time cp -r takes
+# to create the same files (the file-system floor); then every other bench
+# program in BUILD/bench. Targets (10,000 records, 2 cores): default outputs
+# < 1.5 s, --outputs none < 0.3 s. Usage: bash bench/run.sh BUILD
+# Environment: BENCH_SIZES (default "1000 10000"), BENCH_RUNS (default 3),
+# BENCH_JOBS (default: sedgrade's own, the number of processors).
+set -u
+build=${1:-build}
+root=$(cd "$(dirname "$0")/.." && pwd)
+cd "$root" || exit 3
+prog=$build/sedgrade
+gen=$build/bench/gen_archive
+out=bench/out
+sizes=${BENCH_SIZES:-1000 10000}
+runs=${BENCH_RUNS:-3}
+jobs=()
+[ -n "${BENCH_JOBS:-}" ] && jobs=(-j "$BENCH_JOBS")
+target_default_s=1.5
+target_none_s=0.3
+target_n=10000
+
+for f in "$prog" "$gen"; do
+  [ -x "$f" ] || { echo "bench: $f is missing (run make bench)" >&2; exit 3; }
+done
+[ -x /usr/bin/time ] || { echo "bench: /usr/bin/time is needed (apt-get install time)" >&2; exit 3; }
+mkdir -p "$out"
+
+# best_of CMD...: runs CMD $runs times; sets best_s and rss_kb (peak RSS of
+# the fastest run) and last_rc; the tally line of the last run in tally.
+best_of() {
+  best_s=; rss_kb=; last_rc=0; tally=
+  for _ in $(seq "$runs"); do
+    rm -rf "$out/res"
+    sync
+    /usr/bin/time -f '%e %M' -o "$out/time.txt" "$@" 2>"$out/stderr.txt" >/dev/null
+    last_rc=$?
+    read -r s kb < <(tail -n 1 "$out/time.txt")
+    tally=$(grep -v '^Command exited' "$out/stderr.txt" | tail -n 1)
+    if [ -z "$best_s" ] || awk -v a="$s" -v b="$best_s" 'BEGIN { exit !(a < b) }'; then
+      best_s=$s; rss_kb=$kb
+    fi
+  done
+}
+
+verdict() { # verdict N SECONDS TARGET
+  if [ "$1" != "$target_n" ]; then echo "-"; return; fi
+  awk -v s="$2" -v t="$3" 'BEGIN { if (s < t) print "meets < " t " s"; else print "MISSES < " t " s" }'
+}
+
+status=0
+rows=()
+echo "bench: $(nproc) processors, load average $(cut -d' ' -f1-3 /proc/loadavg), best of $runs runs"
+for n in $sizes; do
+  arch=$out/archive_$n
+  if [ ! -f "$arch/.complete" ]; then
+    rm -rf "$arch"
+    t0=$(date +%s.%N)
+    "$gen" "$arch" "$n" || { echo "bench: generating $n records failed" >&2; exit 3; }
+    touch "$arch/.complete"
+    echo "bench: generated $n records in $arch ($(awk -v a="$t0" -v b="$(date +%s.%N)" 'BEGIN { printf "%.2f", b - a }') s)"
+  fi
+
+  best_of "$prog" reduce "$arch" -o "$out/res" "${jobs[@]}"
+  [ "$last_rc" -le 2 ] || { echo "bench: sedgrade reduce failed (exit $last_rc)" >&2; cat "$out/stderr.txt" >&2; status=1; }
+  nfiles=$(find "$out/res" -type f | wc -l)
+  rows+=("$(printf '%-8s %-16s %8s %9.1f  %-16s %s' "$n" "default" "$best_s" "$(awk -v k="$rss_kb" 'BEGIN { print k / 1024 }')" "$(verdict "$n" "$best_s" "$target_default_s")" "$tally")")
+
+  # The floor: cp -r creating the very files the run wrote.
+  rm -rf "$out/floor_src"; mv "$out/res" "$out/floor_src"
+  floor_best=
+  for _ in $(seq "$runs"); do
+    rm -rf "$out/floor_dst"; sync
+    /usr/bin/time -f '%e %M' -o "$out/time.txt" cp -r "$out/floor_src" "$out/floor_dst"
+    read -r s _ < <(tail -n 1 "$out/time.txt")
+    if [ -z "$floor_best" ] || awk -v a="$s" -v b="$floor_best" 'BEGIN { exit !(a < b) }'; then floor_best=$s; fi
+  done
+  rm -rf "$out/floor_src" "$out/floor_dst"
+  rows+=("$(printf '%-8s %-16s %8s %9s  %-16s %s' "$n" "cp -r (floor)" "$floor_best" "-" "-" "$nfiles files")")
+
+  best_of "$prog" reduce "$arch" -o "$out/res" --outputs none "${jobs[@]}"
+  [ "$last_rc" -le 2 ] || { echo "bench: sedgrade reduce --outputs none failed (exit $last_rc)" >&2; status=1; }
+  rows+=("$(printf '%-8s %-16s %8s %9.1f  %-16s %s' "$n" "--outputs none" "$best_s" "$(awk -v k="$rss_kb" 'BEGIN { print k / 1024 }')" "$(verdict "$n" "$best_s" "$target_none_s")" "$tally")")
+  rm -rf "$out/res"
+done
+
+echo
+printf '%-8s %-16s %8s %9s  %-16s %s\n' records outputs wall_s rss_MB target "tally / note"
+printf '%s\n' "${rows[@]}"
+rm -f "$out/time.txt" "$out/stderr.txt"
+
+# Every other benchmark program.
+for b in "$build"/bench/*; do
+  [ -x "$b" ] && [ -f "$b" ] || continue
+  case $(basename "$b") in gen_archive|*.d|*.o) continue ;; esac
+  echo
+  echo "== $(basename "$b")"
+  "$b" || { echo "bench: $(basename "$b") failed" >&2; status=1; }
+done
+exit $status
