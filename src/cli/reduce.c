@@ -338,7 +338,10 @@ static enum sg_status write_csv(const char *dir, const char *id, const char *suf
         return st;
     if ((st = fn(f.fp, res, with_u, err)) != SG_OK) {
         sg_atomic_abort(&f);
-        return st;
+        char why[sizeof err->msg];
+        (void)snprintf(why, sizeof why, "%s", err ? err->msg : "");
+        return sg_error_set(err, st, 0, 0, "cannot write '%s': %s (nothing was written for this test)", path,
+                            why);
     }
     return sg_atomic_commit(&f, err);
 }
@@ -857,7 +860,7 @@ int sg_cli_reduce(int argc, char **argv)
     if (!cfg.quiet)
         fprintf(stderr, "sedgrade: %zu reduced (%zu QC-flagged, %zu QC-failed), %zu refused%s; results in %s\n",
                 n_ok, n_flagged, n_failed_qc, n_refused + walk_problems,
-                n_io ? " , some not written (I/O errors)" : "", cfg.out_dir);
+                n_io ? ", some not written (I/O errors)" : "", cfg.out_dir);
     if (rc == SG_EXIT_OK)
         rc = n_io ? SG_EXIT_IO : (n_refused + walk_problems) ? SG_EXIT_INPUT : n_failed_qc ? SG_EXIT_QC : SG_EXIT_OK;
 
