@@ -16,12 +16,7 @@
 
 #include "cli/cli.h"
 #include "sedgrade/atomic.h"
-#if defined(__has_include)
-#if __has_include("sedgrade/calibio.h")
 #include "sedgrade/calibio.h"
-#define SG_HAVE_CALIBIO 1
-#endif
-#endif
 #include "sedgrade/csvout.h"
 #include "sedgrade/mc.h"
 #include "sedgrade/plot.h"
@@ -97,18 +92,6 @@ struct batch {
     struct id_set ids;
     pthread_mutex_t stderr_lock;
 };
-
-#ifndef SG_HAVE_CALIBIO
-/* TEMPORARY until the register module lands: inline constants only. */
-static enum sg_status sg_calibio_resolve(const char *register_dir, const struct sg_record *rec,
-                                         struct sg_constants *k, struct sg_error *err)
-{
-    (void)register_dir;
-    (void)err;
-    sg_constants_from_record(rec, k);
-    return SG_OK;
-}
-#endif
 
 /* ---- collecting input files ---- */
 
