@@ -6,7 +6,7 @@ PREFIX   ?= /usr/local
 BUILD    ?= build
 SANITIZE ?=
 
-PKGS     := gsl cairo
+PKGS     := gsl cairo fontconfig
 WARN     := -Wall -Wextra -Wpedantic -Werror -Wshadow -Wstrict-prototypes -Wdouble-promotion \
             -Wformat=2 -Wvla
 CFLAGS   ?= -O2 -g

@@ -28,7 +28,7 @@ double sg_axis_log_x(const struct sg_axis_log *a, double d_mm)
 {
     if (!(d_mm > 0.0) || !isfinite(d_mm) || !(a->lo_mm > 0.0) || !(a->hi_mm > a->lo_mm) ||
         a->x_fine == a->x_coarse)
-        return NAN;
+        return (double)NAN;
     const double l0 = log10(a->lo_mm);
     const double t = (log10(d_mm) - l0) / (log10(a->hi_mm) - l0);
     return a->x_fine + t * (a->x_coarse - a->x_fine);
@@ -37,7 +37,7 @@ double sg_axis_log_x(const struct sg_axis_log *a, double d_mm)
 double sg_axis_log_d(const struct sg_axis_log *a, double x)
 {
     if (!isfinite(x) || !(a->lo_mm > 0.0) || !(a->hi_mm > a->lo_mm) || a->x_fine == a->x_coarse)
-        return NAN;
+        return (double)NAN;
     const double l0 = log10(a->lo_mm);
     const double t = (x - a->x_fine) / (a->x_coarse - a->x_fine);
     return pow(10.0, l0 + t * (log10(a->hi_mm) - l0));
@@ -46,14 +46,14 @@ double sg_axis_log_d(const struct sg_axis_log *a, double x)
 double sg_axis_lin_map(const struct sg_axis_lin *a, double v)
 {
     if (!isfinite(v) || a->lo == a->hi)
-        return NAN;
+        return (double)NAN;
     return a->p_lo + (v - a->lo) / (a->hi - a->lo) * (a->p_hi - a->p_lo);
 }
 
 double sg_axis_lin_value(const struct sg_axis_lin *a, double p)
 {
     if (!isfinite(p) || a->p_lo == a->p_hi)
-        return NAN;
+        return (double)NAN;
     return a->lo + (p - a->p_lo) / (a->p_hi - a->p_lo) * (a->hi - a->lo);
 }
 
@@ -210,7 +210,7 @@ static const struct sg_axis_band iso_bands[] = {
     {0.063, 2.0, 0, "Sand", "Sa"},
     {2.0, 63.0, 0, "Gravel", "Gr"},
     {63.0, 200.0, 0, "Cobbles", "Co"},
-    {200.0, INFINITY, 0, "Boulders", "Bo"},
+    {200.0, (double)INFINITY, 0, "Boulders", "Bo"},
     {0.002, 0.0063, 1, "fine", "F"},
     {0.0063, 0.02, 1, "medium", "M"},
     {0.02, 0.063, 1, "coarse", "C"},
@@ -231,7 +231,7 @@ static const struct sg_axis_band uscs_bands[] = {
     {0.075, 4.75, 0, "Sand", "Sa"},
     {4.75, 75.0, 0, "Gravel", "Gr"},
     {75.0, 300.0, 0, "Cobbles", "Co"},
-    {300.0, INFINITY, 0, "Boulders", "Bo"},
+    {300.0, (double)INFINITY, 0, "Boulders", "Bo"},
     {0.075, 0.425, 1, "fine", "F"},
     {0.425, 2.0, 1, "medium", "M"},
     {2.0, 4.75, 1, "coarse", "C"},

@@ -7,6 +7,10 @@
 
 #include "sedgrade/axis.h"
 
+/* NaN and infinity as doubles (the macros are float). */
+#define DNAN ((double)NAN)
+#define DINF ((double)INFINITY)
+
 static void setup(void)
 {
     gsl_set_error_handler_off();
@@ -50,14 +54,14 @@ Test(axis, log_x_rejects_what_has_no_logarithm)
 {
     cr_assert(isnan(sg_axis_log_x(&five, 0.0)));
     cr_assert(isnan(sg_axis_log_x(&five, -0.5)));
-    cr_assert(isnan(sg_axis_log_x(&five, NAN)));
-    cr_assert(isnan(sg_axis_log_x(&five, INFINITY)));
+    cr_assert(isnan(sg_axis_log_x(&five, DNAN)));
+    cr_assert(isnan(sg_axis_log_x(&five, DINF)));
     const struct sg_axis_log flat = {0.001, 100.0, 300.0, 300.0};
     cr_assert(isnan(sg_axis_log_x(&flat, 0.1)));
     const struct sg_axis_log rev = {1.0, 0.1, 0.0, 100.0};
     cr_assert(isnan(sg_axis_log_x(&rev, 0.5)));
     cr_assert(isnan(sg_axis_log_d(&flat, 300.0)));
-    cr_assert(isnan(sg_axis_log_d(&five, NAN)));
+    cr_assert(isnan(sg_axis_log_d(&five, DNAN)));
 }
 
 Test(axis, log_d_inverts_log_x)
@@ -80,7 +84,7 @@ Test(axis, percent_axis_upwards_on_a_y_down_device)
     cr_assert_float_eq(sg_axis_lin_map(&y, 37.25), 269.625, 1e-12);
     cr_assert_float_eq(sg_axis_lin_value(&y, 190.0), 60.0, 1e-12);
     cr_assert_float_eq(sg_axis_lin_value(&y, 269.625), 37.25, 1e-12);
-    cr_assert(isnan(sg_axis_lin_map(&y, NAN)));
+    cr_assert(isnan(sg_axis_lin_map(&y, DNAN)));
     const struct sg_axis_lin flat = {5.0, 5.0, 0.0, 1.0};
     cr_assert(isnan(sg_axis_lin_map(&flat, 5.0)));
     const struct sg_axis_lin flatp = {0.0, 1.0, 3.0, 3.0};
@@ -90,7 +94,7 @@ Test(axis, percent_axis_upwards_on_a_y_down_device)
 Test(axis, range_default_and_widened_by_decades)
 {
     double lo, hi;
-    cr_assert_eq(sg_axis_log_range(NAN, NAN, &lo, &hi, NULL), SG_OK);
+    cr_assert_eq(sg_axis_log_range(DNAN, DNAN, &lo, &hi, NULL), SG_OK);
     cr_assert_float_eq(lo, 0.001, 1e-15);
     cr_assert_float_eq(hi, 100.0, 1e-12);
     /* data inside the default range keep it */
@@ -114,7 +118,7 @@ Test(axis, range_errors)
     cr_assert_eq(sg_axis_log_range(0.0, 1.0, &lo, &hi, &e), SG_EINVAL);
     cr_assert(strstr(e.msg, "mm") != NULL);
     cr_assert_eq(sg_axis_log_range(0.1, -1.0, &lo, &hi, NULL), SG_EINVAL);
-    cr_assert_eq(sg_axis_log_range(0.1, INFINITY, &lo, &hi, NULL), SG_EINVAL);
+    cr_assert_eq(sg_axis_log_range(0.1, DINF, &lo, &hi, NULL), SG_EINVAL);
     cr_assert_eq(sg_axis_log_range(2.0, 1.0, &lo, &hi, &e), SG_EINVAL);
     cr_assert(strstr(e.msg, "reversed") != NULL);
     cr_assert_eq(sg_axis_log_range(1e-8, 1.0, &lo, &hi, NULL), SG_EINVAL);
@@ -199,7 +203,7 @@ Test(axis, nice_range_errors)
 {
     double lo, hi, step;
     cr_assert_eq(sg_axis_nice_range(1.0, 0.0, 4, &lo, &hi, &step, NULL), SG_EINVAL);
-    cr_assert_eq(sg_axis_nice_range(NAN, 1.0, 4, &lo, &hi, &step, NULL), SG_EINVAL);
+    cr_assert_eq(sg_axis_nice_range(DNAN, 1.0, 4, &lo, &hi, &step, NULL), SG_EINVAL);
     cr_assert_eq(sg_axis_nice_range(0.0, 1.0, 0, &lo, &hi, &step, NULL), SG_EINVAL);
 }
 
@@ -233,7 +237,7 @@ Test(axis, lin_ticks_errors)
     cr_assert_eq(sg_axis_lin_ticks(0.0, 100.0, 10.0, t, 4, &n, NULL), SG_ELIMIT);
     cr_assert_eq(sg_axis_lin_ticks(0.0, 1.0, 0.0, t, 4, &n, NULL), SG_EINVAL);
     cr_assert_eq(sg_axis_lin_ticks(2.0, 1.0, 0.5, t, 4, &n, NULL), SG_EINVAL);
-    cr_assert_eq(sg_axis_lin_ticks(0.0, INFINITY, 0.5, t, 4, &n, NULL), SG_EINVAL);
+    cr_assert_eq(sg_axis_lin_ticks(0.0, DINF, 0.5, t, 4, &n, NULL), SG_EINVAL);
 }
 
 /* Looks a band up by tier and lower bound. */
@@ -351,7 +355,7 @@ Test(axis, format_significant_digits)
     cr_assert_str_eq(b, "-0.0025");
     sg_axis_format_sig(0.0, 4, b, sizeof b);
     cr_assert_str_eq(b, "0");
-    sg_axis_format_sig(NAN, 4, b, sizeof b);
+    sg_axis_format_sig(DNAN, 4, b, sizeof b);
     cr_assert_str_eq(b, "");
     sg_axis_format_sig(3.2e-12, 3, b, sizeof b);
     cr_assert_str_eq(b, "3.2e-12");
@@ -366,7 +370,7 @@ Test(axis, format_fixed_decimals)
     cr_assert_str_eq(b, "100.0");
     sg_axis_format_fixed(-0.04, 1, b, sizeof b);
     cr_assert_str_eq(b, "0.0");
-    sg_axis_format_fixed(INFINITY, 1, b, sizeof b);
+    sg_axis_format_fixed(DINF, 1, b, sizeof b);
     cr_assert_str_eq(b, "");
     sg_axis_format_fixed(12.0, -3, b, sizeof b);
     cr_assert_str_eq(b, "12");

@@ -1,4 +1,22 @@
-/* report.h - the one-page A4 PDF test report. */
+/* report.h - the one-page A4 PDF test report.
+ *
+ * One page, portrait A4 (595.28 x 841.89 pt), fixed layout, top to bottom:
+ * title and test identification; method and the standard followed;
+ * specimen data; the grading chart (the same drawing code as plot.h);
+ * results (D-values, Cu, Cc, fractions by ISO 14688-1 and the record's
+ * system, fines, USDA separates and texture class, with the 95 % intervals
+ * when Monte Carlo ran); the sieve table; the sedimentation readings with
+ * every correction applied (thermometer, blank/composite, meniscus,
+ * effective depth, viscosity); QC flags; the calibration entries used with
+ * their dates; the cautions; sign-off lines; and the report ID with "page 1
+ * of 1, end of report" at the foot. Long tables are cut to fit with a line
+ * "... n more rows (see <id>.points.csv)".
+ *
+ * Text is real PDF text (cairo toy font API, DejaVu Sans from
+ * fonts-dejavu-core), so it can be searched and extracted (pdftotext). The
+ * PDF's title is "Particle size distribution - <id>", its creator
+ * "sedgrade" and its creation date the test date, so the same input gives
+ * the same file. */
 #ifndef SEDGRADE_REPORT_H
 #define SEDGRADE_REPORT_H
 
@@ -6,7 +24,13 @@
 #include "sedgrade/record.h"
 #include "sedgrade/result.h"
 
-/* Writes the report for one reduced test to path (atomically). */
+/* Page size of the report, pt (ISO 216 A4: 210 x 297 mm). */
+#define SG_REPORT_WIDTH_PT 595.276
+#define SG_REPORT_HEIGHT_PT 841.890
+
+/* Writes the report for one reduced test to path (atomically: nothing is
+ * left at path on failure). SG_EINVAL for a NULL res, rec or path; SG_EIO
+ * when the file cannot be written; SG_ENOMEM. */
 enum sg_status sg_report_write(const struct sg_result *res, const struct sg_record *rec, const char *path,
                                struct sg_error *err);
 
