@@ -10,6 +10,8 @@
 #include "sedgrade/classify.h"
 #include "sedgrade/hydrometer.h"
 #include "sedgrade/pipette.h"
+#include "sedgrade/plasticity.h"
+#include "sedgrade/screens.h"
 #include "sedgrade/sieve.h"
 
 struct sg_reduce_options sg_reduce_options_default(void)
@@ -78,9 +80,10 @@ static enum sg_status add_sieve_points(const struct sg_sieve_row *rows, size_t n
 }
 
 /* Blank (composite) reading for a hydrometer row: the row's own, else the
- * register's line in temperature (no extrapolation), else the record's constant. */
+ * register's line in temperature (no extrapolation), else the record's constant,
+ * else 0 with *missing set. */
 static enum sg_status blank_for(const struct sg_reading_row *r, double temp_c, const struct sg_constants *k,
-                                double *blank, struct sg_error *err)
+                                double *blank, bool *missing, struct sg_error *err)
 {
     if (r->has_blank) {
         *blank = r->blank_reading;
@@ -100,9 +103,11 @@ static enum sg_status blank_for(const struct sg_reading_row *r, double temp_c, c
         *blank = k->blank_const;
         return SG_OK;
     }
-    return sg_error_set(err, SG_EINVAL, r->pos.line, r->pos.col,
-                        "no blank (composite) reading for this reading (give it as the row's fifth field, "
-                        "as 'test,composite_correction,<reading>', or in the hydrometer's register entry)");
+    /* No blank anywhere: the readings are taken as already corrected (blank 0)
+     * and the run carries a "no_blank" warning (added by the caller). */
+    *blank = 0.0;
+    *missing = true;
+    return SG_OK;
 }
 
 static enum sg_status add_hydrometer_points(const struct sg_record *rec, const struct sg_constants *k,
@@ -113,9 +118,11 @@ static enum sg_status add_hydrometer_points(const struct sg_record *rec, const s
                             "no effective-depth line for hydrometer '%s' (calibrate it in the register "
                             "or give 'test,depth_line_mm,<depth at 0>,<change per unit>')",
                             rec->hydrometer);
+    size_t n_missing = 0;
     for (size_t i = 0; i < rec->n_readings; i++) {
         const struct sg_reading_row *r = &rec->readings[i];
         const double temp_c = r->temp_c + k->thermometer_offset_c;
+        bool missing = false;
         struct sg_hydrometer_input in = {
             .scale = rec->scale,
             .standard = rec->standard,
@@ -129,9 +136,10 @@ static enum sg_status add_hydrometer_points(const struct sg_record *rec, const s
             .specimen_dry_mass_g = rec->specimen_dry_mass_g,
             .suspension_volume_ml = rec->suspension_volume_ml,
         };
-        enum sg_status st = blank_for(r, temp_c, k, &in.blank_reading, err);
+        enum sg_status st = blank_for(r, temp_c, k, &in.blank_reading, &missing, err);
         if (st != SG_OK)
             return st;
+        n_missing += missing;
         struct sg_hydrometer_point hp;
         st = sg_hydrometer_reduce(&in, &hp, err);
         if (st != SG_OK)
@@ -155,6 +163,13 @@ static enum sg_status add_hydrometer_points(const struct sg_record *rec, const s
         if ((st = sg_result_add_point(res, &p)) != SG_OK)
             return sg_error_set(err, st, 0, 0, "out of memory");
     }
+    if (n_missing > 0 &&
+        sg_result_add_flag(res, "no_blank", SG_SEVERITY_WARNING, rec->readings[0].pos.line,
+                           "%zu reading%s had no blank (composite) reading and were taken as already corrected "
+                           "(blank 0); give the blank in the row, as 'test,composite_correction' or in the "
+                           "hydrometer's register entry",
+                           n_missing, n_missing == 1 ? "" : "s") != SG_OK)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
     return SG_OK;
 }
 
@@ -183,6 +198,10 @@ static enum sg_status add_pipette_points(const struct sg_record *rec, const stru
         };
         struct sg_pipette_point pp;
         enum sg_status st = sg_pipette_reduce(&in, &pp, err);
+        if (st == SG_OK && i == 0 && !rec->has_dispersant)
+            st = sg_result_add_flag(res, "no_dispersant_mass", SG_SEVERITY_WARNING, r->pos.line,
+                                    "no 'test,dispersant_mass_g': the dispersant's share of the pipette "
+                                    "solids was not subtracted (give 0 if none was used)");
         if (st != SG_OK)
             return locate(err, st, r->pos);
         struct sg_point p = sg_point_blank(SG_SOURCE_PIPETTE, r->pos.line);
@@ -305,6 +324,11 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
         return sg_error_set(err, st, 0, 0, "out of memory");
     if ((st = sg_classify_summarise(&res->curve, rec, opt, res, err)) != SG_OK)
         return st;
+    if ((st = sg_plasticity_summarise(rec, opt, res, err)) != SG_OK ||
+        (st = sg_screens_summarise(rec, opt, res, err)) != SG_OK)
+        return st;
+    if (opt->values_only)
+        return SG_OK; /* a Monte Carlo draw (mc.h): no QC rules, register notes or calibration row */
     if ((st = sg_result_add_text(res, "calibration_used", res->calibration_used,
                                  "register entries applied (instrument@date) or inline constants")) != SG_OK)
         return sg_error_set(err, st, 0, 0, "out of memory");

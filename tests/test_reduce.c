@@ -139,7 +139,7 @@ Test(reduce, register_blank_line_and_thermometer_offset)
     sg_record_release(&rec);
 }
 
-Test(reduce, missing_blank_is_refused)
+Test(reduce, missing_blank_is_zero_with_a_warning)
 {
     struct sg_record rec;
     struct sg_result res;
@@ -147,9 +147,13 @@ Test(reduce, missing_blank_is_refused)
     v2b_record(&rec);
     rec.has_composite = false;
     sg_result_init(&res);
-    cr_assert_eq(sg_reduce(&rec, NULL, NULL, &res, &err), SG_EINVAL);
-    cr_assert_eq(err.line, 20u);
-    cr_assert(strstr(err.msg, "blank") != NULL, "%s", err.msg);
+    cr_assert_eq(sg_reduce(&rec, NULL, NULL, &res, &err), SG_OK, "%s", err.msg);
+    cr_assert(fabs(res.points[3].corrected_reading - 30.0) < 1e-12);
+    bool flagged = false;
+    for (size_t i = 0; i < res.n_flags; i++)
+        flagged |= strcmp(res.flags[i].name, "no_blank") == 0 && res.flags[i].severity == SG_SEVERITY_WARNING &&
+                   res.flags[i].line == 20u;
+    cr_assert(flagged);
     sg_result_release(&res);
     sg_record_release(&rec);
 }
