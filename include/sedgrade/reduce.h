@@ -46,6 +46,8 @@ struct sg_reduce_options {
     struct sg_qc_limits qc;      /* default sg_qc_limits_default() */
     const double *extra_dx;      /* additional D_x percentages to report (may be NULL) */
     size_t n_extra_dx;
+    bool values_only;            /* Monte Carlo draws (mc.h): values only; QC, register notes and
+                                    summary notes may be skipped. Default false. */
 };
 
 /* Defaults: loglinear, default QC limits, no extra D_x. */

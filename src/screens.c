@@ -1,0 +1,140 @@
+/* screens.c - Hazen permeability, the 0.02 mm frost screen and Terzaghi's
+ * filter ratios (METHODS.md 9.1, 9.3, 9.4): screens, not design values. */
+#include "sedgrade/screens.h"
+
+#include <math.h>
+#include <stdio.h>
+
+#include "sedgrade/curve.h"
+#include "sedgrade/reduce.h"
+
+double sg_screens_hazen_k_cm_s(double d10_mm)
+{
+    return SG_HAZEN_C_CM_S_PER_MM2 * d10_mm * d10_mm;
+}
+
+bool sg_screens_hazen_valid(double d10_mm)
+{
+    return isfinite(d10_mm) && d10_mm >= SG_HAZEN_D10_MIN_MM && d10_mm <= SG_HAZEN_D10_MAX_MM;
+}
+
+enum sg_frost_class sg_screens_frost(double finer_0_02_mm_pct, bool uniform)
+{
+    const double p = finer_0_02_mm_pct;
+    const double possible = uniform ? SG_FROST_UNIFORM_POSSIBLE_PCT : SG_FROST_POSSIBLE_PCT;
+    const double susceptible = uniform ? SG_FROST_UNIFORM_SUSCEPTIBLE_PCT : SG_FROST_SUSCEPTIBLE_PCT;
+    if (p >= susceptible)
+        return SG_FROST_SUSCEPTIBLE;
+    if (p >= possible)
+        return SG_FROST_POSSIBLY;
+    return SG_FROST_NOT_SUSCEPTIBLE;
+}
+
+const char *sg_screens_frost_name(enum sg_frost_class c)
+{
+    switch (c) {
+    case SG_FROST_NOT_SUSCEPTIBLE: return "not frost susceptible";
+    case SG_FROST_POSSIBLY: return "possibly frost susceptible";
+    case SG_FROST_SUSCEPTIBLE: return "frost susceptible";
+    }
+    return "";
+}
+
+enum sg_status sg_screens_terzaghi(double base_d15_mm, double base_d85_mm, double filter_d15_mm,
+                                   struct sg_filter_ratios *out, struct sg_error *err)
+{
+    const double v[3] = {base_d15_mm, base_d85_mm, filter_d15_mm};
+    static const char *const what[3] = {"base soil D15", "base soil D85", "filter D15"};
+    for (int i = 0; i < 3; i++)
+        if (!isfinite(v[i]) || v[i] <= 0.0)
+            return sg_error_set(err, SG_EINVAL, 0, 0, "%s %g mm must be a positive size (give it in mm)", what[i],
+                                v[i]);
+    out->retention = filter_d15_mm / base_d85_mm;
+    out->permeability = filter_d15_mm / base_d15_mm;
+    out->retention_ok = out->retention <= SG_TERZAGHI_RETENTION_MAX;
+    out->permeability_ok = out->permeability >= SG_TERZAGHI_PERMEABILITY_MIN;
+    return SG_OK;
+}
+
+static double quantity(const struct sg_result *res, const char *name)
+{
+    const struct sg_quantity *q = sg_result_quantity(res, name);
+    return (q != NULL && q->determined && !q->is_text) ? q->value : (double)NAN;
+}
+
+static enum sg_status nomem(struct sg_error *err)
+{
+    return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory adding the screens");
+}
+
+static enum sg_status add_hazen(struct sg_result *res, bool quiet, struct sg_error *err)
+{
+    char note[SG_QNOTE_MAX];
+    note[0] = '\0';
+    const double d10 = quantity(res, "d10_mm"), cu = quantity(res, "cu");
+    enum sg_status st;
+    if (!isfinite(d10))
+        st = sg_result_add_undetermined(res, "hazen_k_cm_s", "cm/s",
+                                        quiet ? "" : "not determined: D10 is not determined");
+    else if (!sg_screens_hazen_valid(d10)) {
+        if (!quiet)
+            (void)snprintf(note, sizeof note,
+                           "not determined: D10 %.3g mm is outside Hazen's validity window %g-%g mm (empirical "
+                           "screen for loose clean sands)",
+                           d10, SG_HAZEN_D10_MIN_MM, SG_HAZEN_D10_MAX_MM);
+        st = sg_result_add_undetermined(res, "hazen_k_cm_s", "cm/s", note);
+    } else {
+        const double k = sg_screens_hazen_k_cm_s(d10);
+        if (!quiet)
+            (void)snprintf(note, sizeof note,
+                           "empirical screen, not a design value: Hazen k = C D10^2, C = %g (cm/s)/mm^2, D10 %.3g mm "
+                           "(%.2g m/s); for loose clean sands, D10 %g-%g mm%s",
+                           SG_HAZEN_C_CM_S_PER_MM2, d10, k / 100.0, SG_HAZEN_D10_MIN_MM, SG_HAZEN_D10_MAX_MM,
+                           isfinite(cu) && cu >= SG_HAZEN_CU_NOTE ? "; Cu >= 5: not the uniform sand Hazen assumed"
+                                                                  : "");
+        st = sg_result_add_value(res, "hazen_k_cm_s", "cm/s", k, note);
+    }
+    return st == SG_OK ? SG_OK : nomem(err);
+}
+
+static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_error *err)
+{
+    char note[SG_QNOTE_MAX];
+    note[0] = '\0';
+    double p = quantity(res, "finer_0_02_mm_pct");
+    if (!isfinite(p) && sg_curve_percent_at(&res->curve, SG_FROST_SIZE_MM, &p, NULL) != SG_OK)
+        p = NAN;
+    enum sg_status st;
+    if (!isfinite(p)) {
+        st = sg_result_add_undetermined(res, "frost_screen", "",
+                                        quiet ? "" : "not determined: the percent finer than 0.02 mm is not "
+                                                     "determined");
+    } else {
+        const double cu = quantity(res, "cu");
+        const bool uniform = isfinite(cu) && cu < SG_FROST_UNIFORM_CU_MAX;
+        const enum sg_frost_class c = sg_screens_frost(p, uniform);
+        if (!quiet)
+            (void)snprintf(note, sizeof note,
+                           "empirical screen, not a design decision: %.1f %% finer than 0.02 mm; %s limits %g %% "
+                           "(possibly) and %g %% (Casagrande 1931, US Army TI 850-02)%s",
+                           p, uniform ? "uniform-soil" : "non-uniform-soil",
+                           uniform ? SG_FROST_UNIFORM_POSSIBLE_PCT : SG_FROST_POSSIBLE_PCT,
+                           uniform ? SG_FROST_UNIFORM_SUSCEPTIBLE_PCT : SG_FROST_SUSCEPTIBLE_PCT,
+                           isfinite(cu) ? "" : "; Cu not determined, non-uniform limits used");
+        st = sg_result_add_text(res, "frost_screen", sg_screens_frost_name(c), note);
+    }
+    return st == SG_OK ? SG_OK : nomem(err);
+}
+
+enum sg_status sg_screens_summarise(const struct sg_record *rec, const struct sg_reduce_options *opt,
+                                    struct sg_result *res, struct sg_error *err)
+{
+    (void)rec;
+    if (res == NULL)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "no result for the screens");
+    const bool quiet = opt != NULL && opt->values_only;
+    enum sg_status st = add_hazen(res, quiet, err);
+    if (st == SG_OK)
+        st = add_frost(res, quiet, err);
+    return st;
+}
