@@ -70,7 +70,12 @@ enum sg_status sg_draw_open(struct sg_draw_doc *d, enum sg_plot_format fmt, doub
                                                 (int)lround(height_pt * scale));
         break;
     case SG_PLOT_SVG:
-        d->surface = cairo_svg_surface_create_for_stream(write_fp, d->af.fp, width_pt, height_pt);
+        d->svg_mem = open_memstream(&d->svg_buf, &d->svg_len);
+        if (d->svg_mem == NULL) {
+            sg_draw_abort(d);
+            return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory drawing '%s'", path);
+        }
+        d->surface = cairo_svg_surface_create_for_stream(write_fp, d->svg_mem, width_pt, height_pt);
         break;
     case SG_PLOT_PDF:
         d->surface = cairo_pdf_surface_create_for_stream(write_fp, d->af.fp, width_pt, height_pt);
@@ -114,9 +119,47 @@ void sg_draw_abort(struct sg_draw_doc *d)
         cairo_surface_destroy(d->surface);
     }
     d->surface = NULL;
+    if (d->svg_mem != NULL)
+        (void)fclose(d->svg_mem);
+    d->svg_mem = NULL;
+    free(d->svg_buf);
+    d->svg_buf = NULL;
     if (d->opened)
         sg_atomic_abort(&d->af);
     d->opened = false;
+}
+
+/* Writes the SVG held in memory with every "surface<N>" reference (id="..."
+ * and "#...") renumbered 1, 2, ... in order of first appearance. */
+static bool write_svg_renumbered(const char *buf, size_t len, FILE *fp)
+{
+    static const char key[] = "surface";
+    const size_t klen = sizeof key - 1;
+    unsigned long seen[16];
+    size_t n_seen = 0;
+    size_t i = 0, from = 0;
+    while (i + klen < len) {
+        if (memcmp(buf + i, key, klen) != 0 || !(i > 0 && (buf[i - 1] == '"' || buf[i - 1] == '#')) ||
+            !(buf[i + klen] >= '0' && buf[i + klen] <= '9')) {
+            i++;
+            continue;
+        }
+        size_t j = i + klen;
+        unsigned long v = 0;
+        while (j < len && buf[j] >= '0' && buf[j] <= '9' && v < 100000000ul)
+            v = v * 10 + (unsigned long)(buf[j++] - '0');
+        size_t k = 0;
+        while (k < n_seen && seen[k] != v)
+            k++;
+        if (k == n_seen && n_seen < sizeof seen / sizeof seen[0])
+            seen[n_seen++] = v;
+        if (fwrite(buf + from, 1, i + klen - from, fp) != i + klen - from)
+            return false;
+        if (fprintf(fp, "%zu", k + 1) < 0)
+            return false;
+        from = i = j;
+    }
+    return fwrite(buf + from, 1, len - from, fp) == len - from;
 }
 
 enum sg_status sg_draw_close(struct sg_draw_doc *d, struct sg_error *err)
@@ -133,6 +176,16 @@ enum sg_status sg_draw_close(struct sg_draw_doc *d, struct sg_error *err)
             cairo_surface_finish(d->surface);
             cs = cairo_surface_status(d->surface);
         }
+    }
+    if (cs == CAIRO_STATUS_SUCCESS && d->svg_mem != NULL) {
+        const int e = fclose(d->svg_mem);
+        d->svg_mem = NULL;
+        if (e != 0)
+            cs = CAIRO_STATUS_NO_MEMORY;
+        else if (!write_svg_renumbered(d->svg_buf, d->svg_len, d->af.fp))
+            cs = CAIRO_STATUS_WRITE_ERROR;
+        free(d->svg_buf);
+        d->svg_buf = NULL;
     }
     if (cs != CAIRO_STATUS_SUCCESS) {
         char p[sizeof d->af.path];

@@ -21,6 +21,11 @@ struct sg_draw_doc {
     cairo_t *cr;
     struct sg_atomic_file af;
     bool opened;
+    /* SVG is drawn into memory first, to number its surfaces from 1 (cairo
+     * numbers them per process, which would make files differ run to run) */
+    FILE *svg_mem;
+    char *svg_buf;
+    size_t svg_len;
 };
 
 /* PDF metadata (ignored for PNG and SVG). create_date "YYYY-MM-DD" or NULL. */

@@ -23,7 +23,8 @@
 #define MARGIN_BOTTOM 24.0
 #define CONTENT_W (SG_REPORT_WIDTH_PT - 2.0 * MARGIN_X)
 #define CHART_H 192.0     /* the chart's height when the tables need the room */
-#define CHART_H_MAX 270.0 /* ... and the most it grows into room the tables leave */
+#define CHART_H_MAX 270.0 /* ... the most it grows into room the tables leave */
+#define CHART_H_MIN 130.0 /* ... and the least it shrinks to when the minimum tables need more */
 #define GUTTER 14.0
 
 /* Text sizes and line spacing, pt. */
@@ -607,8 +608,10 @@ static double readings_table(const struct page *pg, double y, size_t max_rows)
 
 /* ---- QC, calibrations, cautions ---- */
 
-/* Height the QC and calibration column needs (dry run) or draws it. */
-static double qc_calibration(const struct page *pg, double x, double y, double w, int max_lines, bool draw)
+/* Draws the calibration and QC column (draw false: only measures) in at
+ * most max_h pt; findings that do not fit become one "... n more" line.
+ * Returns the height used. */
+static double qc_calibration(const struct page *pg, double x, double y, double w, double max_h, bool draw)
 {
     cairo_t *cr = pg->cr;
     const double y0 = y;
@@ -677,7 +680,6 @@ static double qc_calibration(const struct page *pg, double x, double y, double w
         }
         return y + BODY_LEAD - y0;
     }
-    int lines = 0;
     for (size_t i = 0; i < pg->res->n_flags; i++) {
         const struct sg_flag *f = &pg->res->flags[i];
         char where[32] = "";
@@ -686,7 +688,9 @@ static double qc_calibration(const struct page *pg, double x, double y, double w
         (void)snprintf(s, sizeof s, "%s %s%s: %s", sg_severity_name(f->severity), f->name, where, f->message);
         sg_draw_font(cr, TABLE_PT, false);
         const int need = sg_draw_text_wrap(cr, x, y, w, TABLE_LEAD, 3, false, s);
-        if (lines + need > max_lines - 1 && i + 1 < pg->res->n_flags) {
+        const double after = y + need * TABLE_LEAD - y0; /* height with this finding */
+        const bool last = i + 1 == pg->res->n_flags;
+        if ((last && after > max_h) || (!last && after + TABLE_LEAD > max_h)) {
             (void)snprintf(s, sizeof s, "\xe2\x80\xa6 %zu more finding%s (see %s.summary.csv, qc_flags)",
                            pg->res->n_flags - i, pg->res->n_flags - i == 1 ? "" : "s", pg->res->id);
             if (draw) {
@@ -703,7 +707,6 @@ static double qc_calibration(const struct page *pg, double x, double y, double w
             sg_draw_text_wrap(cr, x, y, w, TABLE_LEAD, 3, true, s);
         }
         y += need * TABLE_LEAD;
-        lines += need;
     }
     return y - y0;
 }
@@ -801,25 +804,37 @@ static double draw_page(const struct page *pg, double chart_h)
     const double avail = caut_y - y - 4.0;
     const double colw = (CONTENT_W - GUTTER) / 2.0;
     const size_t n_sieve = count_source(pg->res, true), n_sed = count_source(pg->res, false);
-    const double qc_h = qc_calibration(pg, 0.0, 0.0, colw, 10, false);
+    /* the QC column: what it needs (up to a quarter of the page), and at
+     * least its calibrations, status and one line */
+    double qc_h = qc_calibration(pg, 0.0, 0.0, colw, SG_REPORT_HEIGHT_PT / 4.0, false);
+    const double qc_min = qc_calibration(pg, 0.0, 0.0, colw, 0.0, false);
     const double foot_h = 2.0 * 7.4 + 2.0 + 4.0;
     size_t sieve_rows = n_sieve > 0 ? n_sieve : 1, sed_rows = n_sed > 0 ? n_sed : 1;
+    const size_t min_rows = 3; /* two rows and the "more rows" line */
     for (;;) {
         const double band1 = fmax(table_h(sieve_rows), qc_h);
-        if (band1 + table_h(sed_rows) + foot_h <= avail || (sieve_rows <= 2 && sed_rows <= 2))
+        if (band1 + table_h(sed_rows) + foot_h <= avail)
             break;
-        /* cut the longer table first, but never the sieve table below the QC column's height */
-        if (table_h(sieve_rows) > qc_h && sieve_rows > 2 && (sieve_rows >= sed_rows || sed_rows <= 2))
-            sieve_rows--;
-        else if (sed_rows > 2)
+        /* shrink the taller of the two bands by one line */
+        const bool band1_can = (sieve_rows > min_rows && table_h(sieve_rows) >= band1 - 0.01) ||
+                               (qc_h > qc_min && qc_h >= band1 - 0.01);
+        const bool sed_can = sed_rows > min_rows;
+        if (band1_can && (band1 >= table_h(sed_rows) || !sed_can)) {
+            const double target = band1 - TABLE_LEAD;
+            while (sieve_rows > min_rows && table_h(sieve_rows) > target)
+                sieve_rows--;
+            if (qc_h > target)
+                qc_h = fmax(target, qc_min);
+        } else if (sed_can) {
             sed_rows--;
-        else
-            sieve_rows--;
+        } else {
+            break; /* at the minimum: the chart gives way (layout_and_draw) */
+        }
     }
     const double ys = sieve_table(pg, MARGIN_X, y, colw, sieve_rows);
     const double band1 = fmax(ys - y, qc_h);
-    const int qc_lines = (int)((band1 - 2.0 * (BODY_LEAD + 1.5)) / TABLE_LEAD);
-    (void)qc_calibration(pg, MARGIN_X + colw + GUTTER, y, colw, qc_lines > 3 ? qc_lines : 3, true);
+    /* (qc_h may exceed what is drawn: the column stops at band1) */
+    (void)qc_calibration(pg, MARGIN_X + colw + GUTTER, y, colw, band1, true);
     const double y_end = readings_table(pg, y + band1 + 4.0, sed_rows);
 
     block_cautions(cr, caut_y, true);
@@ -853,9 +868,11 @@ static enum sg_status layout_and_draw(const struct page *pg)
     cairo_surface_destroy(scratch);
     if (cs == CAIRO_STATUS_NO_MEMORY)
         return SG_ENOMEM;
-    double chart_h = CHART_H;
-    if (room > 0.0)
-        chart_h = CHART_H + room < CHART_H_MAX ? CHART_H + room : CHART_H_MAX;
+    double chart_h = CHART_H + room;
+    if (chart_h > CHART_H_MAX)
+        chart_h = CHART_H_MAX;
+    if (chart_h < CHART_H_MIN)
+        chart_h = CHART_H_MIN;
     pdf_metrics(pg->cr);
     (void)draw_page(pg, chart_h);
     return SG_OK;
