@@ -1,14 +1,878 @@
-/* mc.c - PLACEHOLDER until the Monte Carlo module lands. */
+/* mc.c - Monte Carlo uncertainty (JCGM 101:2008): draws of the inputs, each
+ * re-running sg_reduce, summarised as standard deviations, probabilistically
+ * symmetric coverage intervals and class probabilities. */
 #include "sedgrade/mc.h"
+
+#include <gsl/gsl_randist.h>
+#include <gsl/gsl_rng.h>
+#include <math.h>
+#include <pthread.h>
+#include <stdatomic.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* Most distinct classes counted per categorical quantity; more are counted
+ * as "other" (the 12 USDA classes plus "not determined" fit). */
+#define CAT_MAX 24
+
+/* NAN is a float constant; -Wdouble-promotion wants it as a double. */
+#define NO_VALUE ((double)NAN)
+
+/* ---- budget ------------------------------------------------------------ */
+
+static struct sg_mc_input pick(double record_u, double register_u, double default_u)
+{
+    if (record_u >= 0.0 && isfinite(record_u))
+        return (struct sg_mc_input){record_u, SG_MC_FROM_RECORD};
+    if (register_u > 0.0 && isfinite(register_u))
+        return (struct sg_mc_input){register_u, SG_MC_FROM_REGISTER};
+    return (struct sg_mc_input){default_u, SG_MC_FROM_DEFAULT};
+}
+
+void sg_mc_budget_resolve(const struct sg_record *rec, const struct sg_constants *k,
+                          struct sg_mc_budget *b)
+{
+    struct sg_constants inline_k;
+    if (k == NULL) {
+        sg_constants_from_record(rec, &inline_k);
+        k = &inline_k;
+    }
+    const struct sg_record_u *u = &rec->u;
+    memset(b, 0, sizeof *b);
+    if (u->reading >= 0.0 && isfinite(u->reading)) {
+        b->reading_half_width = 0.0;
+        b->reading = (struct sg_mc_input){u->reading, SG_MC_FROM_RECORD};
+    } else {
+        b->reading_half_width = SG_MC_READING_RESOLUTION_HALF_WIDTH;
+        b->reading = (struct sg_mc_input){SG_MC_U_READING_REPEAT, SG_MC_FROM_DEFAULT};
+    }
+    b->temp_c = pick(u->temp_c, 0.0, SG_MC_U_TEMP_C);
+    b->elapsed_min = pick(u->elapsed_min, 0.0, SG_MC_U_ELAPSED_MIN);
+    b->mass_g = pick(u->mass_g, 0.0, SG_MC_U_MASS_G);
+    b->particle_density_mg_m3 = pick(u->particle_density_mg_m3, 0.0, SG_MC_U_PARTICLE_DENSITY_MG_M3);
+    b->blank_row = pick(u->blank_reading, 0.0, SG_MC_U_BLANK);
+    b->blank_test = pick(u->blank_reading, k->blank_u, SG_MC_U_BLANK);
+    b->meniscus = pick(u->meniscus_correction, k->meniscus_u, SG_MC_U_MENISCUS);
+    const bool have_cov = k->depth_cov[0] > 0.0 && isfinite(k->depth_cov[0]) && isfinite(k->depth_cov[1]) &&
+                          isfinite(k->depth_cov[2]) && k->depth_cov[2] >= 0.0;
+    if (u->depth_mm >= 0.0 && isfinite(u->depth_mm)) {
+        b->depth_c0_mm = (struct sg_mc_input){u->depth_mm, SG_MC_FROM_RECORD};
+    } else if (have_cov) {
+        b->depth_c0_mm = (struct sg_mc_input){sqrt(k->depth_cov[0]), SG_MC_FROM_REGISTER};
+        memcpy(b->depth_cov, k->depth_cov, sizeof b->depth_cov);
+    } else {
+        b->depth_c0_mm = (struct sg_mc_input){SG_MC_U_DEPTH_MM, SG_MC_FROM_DEFAULT};
+    }
+    b->pipette_volume_ml = pick(u->pipette_volume_ml, k->pipette_volume_u_ml, SG_MC_U_PIPETTE_VOLUME_ML);
+    b->solids_g = pick(u->solids_g, 0.0, SG_MC_U_SOLIDS_G);
+    b->sampling_depth_mm = pick(u->depth_mm, 0.0, SG_MC_U_DEPTH_MM);
+}
+
+const char *sg_mc_origin_name(enum sg_mc_origin o)
+{
+    switch (o) {
+    case SG_MC_FROM_DEFAULT: return "default";
+    case SG_MC_FROM_RECORD: return "record";
+    case SG_MC_FROM_REGISTER: return "register";
+    }
+    return "";
+}
+
+bool sg_mc_coverage_indices(size_t m, double p, size_t *r, size_t *q)
+{
+    if (m < 2 || !(p > 0.0 && p < 1.0))
+        return false;
+    size_t qq = (size_t)floor(p * (double)m + 0.5);
+    if (qq < 1)
+        qq = 1;
+    if (qq > m - 1)
+        qq = m - 1;
+    size_t rr = (m - qq) % 2 == 0 ? (m - qq) / 2 : (m - qq + 1) / 2;
+    if (rr < 1)
+        rr = 1;
+    if (rr + qq > m)
+        rr = m - qq;
+    *r = rr;
+    *q = qq;
+    return true;
+}
+
+void sg_mc_detail_init(struct sg_mc_detail *d)
+{
+    memset(d, 0, sizeof *d);
+}
+
+void sg_mc_detail_release(struct sg_mc_detail *d)
+{
+    if (d == NULL)
+        return;
+    free(d->points);
+    sg_mc_detail_init(d);
+}
+
+/* ---- accumulators -------------------------------------------------------- */
+
+/* Count, mean and sum of squared deviations (Welford; blocks combined by
+ * Chan et al.'s pairwise rule, always in block order). */
+struct moments {
+    double n, mean, m2;
+};
+
+static void moments_add(struct moments *m, double x)
+{
+    m->n += 1.0;
+    const double d = x - m->mean;
+    m->mean += d / m->n;
+    m->m2 += d * (x - m->mean);
+}
+
+static void moments_merge(struct moments *a, const struct moments *b)
+{
+    if (b->n == 0.0)
+        return;
+    if (a->n == 0.0) {
+        *a = *b;
+        return;
+    }
+    const double n = a->n + b->n;
+    const double d = b->mean - a->mean;
+    a->mean += d * b->n / n;
+    a->m2 += b->m2 + d * d * a->n * b->n / n;
+    a->n = n;
+}
+
+/* A superset of the k smallest values seen: the lower tail needed for the
+ * order statistic y_(r) (the upper tail is kept as the smallest of -y).
+ * Values below the threshold are appended; when the buffer is full it is
+ * partitioned so that its first k entries are the k smallest, and the
+ * threshold becomes the k-th smallest. The k smallest values (hence every
+ * order statistic up to k) do not depend on the order of the additions. */
+struct tail {
+    double *v;
+    size_t n, k, cap;
+    double thresh;
+};
+
+/* Rearranges v[0..n) so that v[k] is the (k+1)-th smallest, with no larger
+ * value before it and no smaller after it (Wirth's selection with a
+ * median-of-three pivot: deterministic). */
+static void select_kth(double *v, size_t n, size_t k)
+{
+    ptrdiff_t l = 0, m = (ptrdiff_t)n - 1;
+    const ptrdiff_t kk = (ptrdiff_t)k;
+    while (l < m) {
+        const double a = v[l], b = v[l + (m - l) / 2], c = v[m];
+        const double x = a < b ? (b < c ? b : (a < c ? c : a)) : (a < c ? a : (b < c ? c : b));
+        ptrdiff_t i = l, j = m;
+        do {
+            while (v[i] < x)
+                i++;
+            while (x < v[j])
+                j--;
+            if (i <= j) {
+                const double t = v[i];
+                v[i] = v[j];
+                v[j] = t;
+                i++;
+                j--;
+            }
+        } while (i <= j);
+        if (j < kk)
+            l = i;
+        if (kk < i)
+            m = j;
+    }
+}
+
+static void tail_add(struct tail *t, double x)
+{
+    if (!(x < t->thresh))
+        return;
+    t->v[t->n++] = x;
+    if (t->n == t->cap) {
+        select_kth(t->v, t->n, t->k - 1);
+        t->n = t->k;
+        t->thresh = t->v[t->k - 1];
+    }
+}
+
+static int cmp_double(const void *a, const void *b)
+{
+    const double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* Class counts of one categorical quantity. */
+struct cat_table {
+    size_t n;
+    char text[CAT_MAX][SG_QTEXT_MAX];
+    size_t count[CAT_MAX];
+    size_t other;
+};
+
+static void cat_add(struct cat_table *t, const char *text, size_t count)
+{
+    for (size_t i = 0; i < t->n; i++)
+        if (strcmp(t->text[i], text) == 0) {
+            t->count[i] += count;
+            return;
+        }
+    if (t->n == CAT_MAX) {
+        t->other += count;
+        return;
+    }
+    (void)snprintf(t->text[t->n], sizeof t->text[t->n], "%s", text);
+    t->count[t->n++] = count;
+}
+
+/* ---- the run ------------------------------------------------------------- */
+
+enum qkind { Q_SKIP = 0, Q_NUMERIC, Q_CATEGORICAL };
+
+struct plan {
+    const struct sg_record *rec;
+    struct sg_constants k0;
+    struct sg_reduce_options opt; /* the caller's, with values_only set */
+    struct sg_mc_budget b;
+    double depth_l[3]; /* Cholesky factor of depth_cov: l11, l21, l22 */
+    bool depth_bivariate;
+
+    size_t m, n_blocks;
+    unsigned long seed;
+
+    /* layout of the nominal result */
+    size_t n_quant;
+    char (*names)[SG_QNAME_MAX];
+    enum qkind *kind;
+    size_t *slot;      /* numeric slot or categorical table index */
+    size_t *draw_index; /* where a draw's result is expected to hold quantity i */
+    size_t n_num, n_cat, n_pts, n_slots;
+
+    /* shared outputs */
+    struct moments *block_stats; /* [n_blocks][n_slots] */
+    struct tail *lo, *hi;        /* [n_num] */
+    pthread_mutex_t lock;
+    atomic_size_t next_block;
+};
+
+struct worker {
+    struct plan *p;
+    pthread_t thread;
+    enum sg_status status;
+    struct sg_error err;
+    struct cat_table *cats; /* [n_cat] */
+    size_t failed;
+    size_t first_failure_draw;
+    char first_failure[sizeof ((struct sg_error *)0)->msg];
+};
+
+static uint64_t splitmix64(uint64_t x)
+{
+    /* Steele, Lea, Flood (2014) SplitMix64 finaliser: a bijective mix so
+     * that neighbouring block indices give unrelated seeds. */
+    x += 0x9E3779B97F4A7C15ull;
+    x = (x ^ (x >> 30)) * 0xBF58476D1CE4E5B9ull;
+    x = (x ^ (x >> 27)) * 0x94D049BB133111EBull;
+    return x ^ (x >> 31);
+}
+
+static unsigned long block_seed(unsigned long seed, size_t block)
+{
+    const uint64_t s = splitmix64(splitmix64((uint64_t)seed) ^ (uint64_t)block);
+    /* gsl_rng_mt19937 uses the low 32 bits; 0 would select its default seed */
+    const unsigned long out = (unsigned long)(s & 0xFFFFFFFFull);
+    return out ? out : 1ul;
+}
+
+static double gauss(gsl_rng *g, double u)
+{
+    return u > 0.0 ? gsl_ran_gaussian_ziggurat(g, u) : 0.0;
+}
+
+static double mass(double nominal, gsl_rng *g, double u)
+{
+    const double x = nominal + gauss(g, u);
+    return x < 0.0 ? 0.0 : x;
+}
+
+/* Writes one draw of every uncertain input into r and k (private copies),
+ * always from the nominal values, in a fixed order of random variates. */
+static void perturb(const struct plan *p, struct sg_record *r, struct sg_constants *k, gsl_rng *g)
+{
+    const struct sg_record *r0 = p->rec;
+    const struct sg_constants *k0 = &p->k0;
+    const struct sg_mc_budget *b = &p->b;
+
+    r->particle_density_mg_m3 = r0->particle_density_mg_m3 + gauss(g, b->particle_density_mg_m3.u);
+    r->specimen_dry_mass_g = mass(r0->specimen_dry_mass_g, g, b->mass_g.u);
+    if (r0->n_sieve > 0)
+        r->sample_dry_mass_g = mass(r0->sample_dry_mass_g, g, b->mass_g.u);
+    for (size_t i = 0; i < r0->n_sieve; i++)
+        r->sieve[i].retained_g = mass(r0->sieve[i].retained_g, g, b->mass_g.u);
+    for (size_t i = 0; i < r0->n_fine_sieve; i++)
+        r->fine_sieve[i].retained_g = mass(r0->fine_sieve[i].retained_g, g, b->mass_g.u);
+    if (r0->has_dispersant)
+        r->dispersant_mass_g = mass(r0->dispersant_mass_g, g, b->mass_g.u);
+
+    if (r0->method == SG_METHOD_HYDROMETER) {
+        k->meniscus_correction = k0->meniscus_correction + gauss(g, b->meniscus.u);
+        const double e_blank = gauss(g, b->blank_test.u);
+        k->blank_const = k0->blank_const + e_blank;
+        k->blank_c0 = k0->blank_c0 + e_blank;
+        if (p->depth_bivariate) {
+            const double z1 = gsl_ran_gaussian_ziggurat(g, 1.0);
+            const double z2 = gsl_ran_gaussian_ziggurat(g, 1.0);
+            k->depth_at_zero_mm = k0->depth_at_zero_mm + p->depth_l[0] * z1;
+            k->depth_per_unit_mm = k0->depth_per_unit_mm + p->depth_l[1] * z1 + p->depth_l[2] * z2;
+        } else {
+            k->depth_at_zero_mm = k0->depth_at_zero_mm + gauss(g, b->depth_c0_mm.u);
+        }
+        for (size_t i = 0; i < r0->n_readings; i++) {
+            const struct sg_reading_row *s = &r0->readings[i];
+            struct sg_reading_row *d = &r->readings[i];
+            double e = gauss(g, b->reading.u);
+            if (b->reading_half_width > 0.0)
+                e += gsl_ran_flat(g, -b->reading_half_width, b->reading_half_width);
+            d->reading = s->reading + e;
+            d->temp_c = s->temp_c + gauss(g, b->temp_c.u);
+            d->elapsed_min = s->elapsed_min + gauss(g, b->elapsed_min.u);
+            if (s->has_blank)
+                d->blank_reading = s->blank_reading + gauss(g, b->blank_row.u);
+        }
+    } else if (r0->method == SG_METHOD_PIPETTE) {
+        k->pipette_volume_ml = k0->pipette_volume_ml + gauss(g, b->pipette_volume_ml.u);
+        for (size_t i = 0; i < r0->n_pipettes; i++) {
+            const struct sg_pipette_row *s = &r0->pipettes[i];
+            struct sg_pipette_row *d = &r->pipettes[i];
+            d->temp_c = s->temp_c + gauss(g, b->temp_c.u);
+            d->elapsed_min = s->elapsed_min + gauss(g, b->elapsed_min.u);
+            d->depth_mm = s->depth_mm + gauss(g, b->sampling_depth_mm.u);
+            d->solids_g = mass(s->solids_g, g, b->solids_g.u);
+        }
+    }
+}
+
+/* The draw's quantity that corresponds to nominal quantity i. */
+static const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs, size_t i)
+{
+    const size_t j = p->draw_index[i];
+    if (j < rs->n_quantities && strcmp(rs->quantities[j].name, p->names[i]) == 0)
+        return &rs->quantities[j];
+    return sg_result_quantity(rs, p->names[i]);
+}
+
+/* Stores one successful draw's values in row and counts its classes. */
+static void extract(const struct plan *p, const struct sg_result *rs, double *row, struct cat_table *cats)
+{
+    for (size_t i = 0; i < p->n_quant; i++) {
+        if (p->kind[i] == Q_SKIP)
+            continue;
+        const struct sg_quantity *q = match(p, rs, i);
+        if (p->kind[i] == Q_NUMERIC)
+            row[p->slot[i]] = (q != NULL && q->determined && !q->is_text && isfinite(q->value)) ? q->value : NO_VALUE;
+        else
+            cat_add(&cats[p->slot[i]], (q != NULL && q->determined) ? q->text : "", 1);
+    }
+    double *pts = row + p->n_num;
+    const bool same = rs->n_points == p->n_pts;
+    for (size_t i = 0; i < p->n_pts; i++) {
+        pts[2 * i] = same ? rs->points[i].percent_finer : NO_VALUE;
+        pts[2 * i + 1] = same ? rs->points[i].diameter_mm : NO_VALUE;
+    }
+}
+
+static void *work(void *arg)
+{
+    struct worker *w = arg;
+    struct plan *p = w->p;
+    struct sg_record r;
+    struct sg_constants k = p->k0;
+    struct sg_result rs;
+    sg_result_init(&rs);
+    gsl_rng *g = gsl_rng_alloc(gsl_rng_mt19937);
+    double *vals = malloc((size_t)SG_MC_BLOCK_DRAWS * (p->n_slots ? p->n_slots : 1) * sizeof *vals);
+    const bool copied = sg_record_copy(&r, p->rec) == SG_OK;
+    if (g == NULL || vals == NULL || !copied) {
+        w->status = sg_error_set(&w->err, SG_ENOMEM, 0, 0, "out of memory for a Monte Carlo thread");
+        goto cleanup;
+    }
+    for (;;) {
+        const size_t blk = atomic_fetch_add(&p->next_block, 1);
+        if (blk >= p->n_blocks)
+            break;
+        gsl_rng_set(g, block_seed(p->seed, blk));
+        const size_t first = blk * SG_MC_BLOCK_DRAWS;
+        const size_t nd = p->m - first < SG_MC_BLOCK_DRAWS ? p->m - first : SG_MC_BLOCK_DRAWS;
+        for (size_t j = 0; j < nd; j++) {
+            double *row = vals + j * p->n_slots;
+            perturb(p, &r, &k, g);
+            struct sg_error e;
+            if (sg_reduce(&r, &k, &p->opt, &rs, &e) == SG_OK) {
+                extract(p, &rs, row, w->cats);
+                continue;
+            }
+            for (size_t s = 0; s < p->n_slots; s++)
+                row[s] = NO_VALUE;
+            if (w->failed++ == 0 || first + j < w->first_failure_draw) {
+                w->first_failure_draw = first + j;
+                (void)snprintf(w->first_failure, sizeof w->first_failure, "%s", e.msg);
+            }
+        }
+        struct moments *bs = p->block_stats + blk * p->n_slots;
+        for (size_t s = 0; s < p->n_slots; s++) {
+            struct moments m = {0.0, 0.0, 0.0};
+            for (size_t j = 0; j < nd; j++) {
+                const double x = vals[j * p->n_slots + s];
+                if (isfinite(x))
+                    moments_add(&m, x);
+            }
+            bs[s] = m;
+        }
+        pthread_mutex_lock(&p->lock);
+        for (size_t j = 0; j < nd; j++) {
+            const double *row = vals + j * p->n_slots;
+            for (size_t s = 0; s < p->n_num; s++)
+                if (isfinite(row[s])) {
+                    tail_add(&p->lo[s], row[s]);
+                    tail_add(&p->hi[s], -row[s]);
+                }
+        }
+        pthread_mutex_unlock(&p->lock);
+    }
+cleanup:
+    if (copied)
+        sg_record_release(&r);
+    free(vals);
+    gsl_rng_free(g);
+    sg_result_release(&rs);
+    return NULL;
+}
+
+static bool is_class_row_quantity(const char *name)
+{
+    const char *list = SG_MC_CLASS_ROWS_FOR;
+    const size_t n = strlen(name);
+    for (const char *s = list; *s != '\0';) {
+        const size_t len = strcspn(s, " ");
+        if (len == n && strncmp(s, name, n) == 0)
+            return true;
+        s += len;
+        while (*s == ' ')
+            s++;
+    }
+    return false;
+}
+
+static void note_append(struct sg_quantity *q, const char *text)
+{
+    const size_t used = strlen(q->note);
+    (void)snprintf(q->note + used, sizeof q->note - used, "%s%s", used ? "; " : "", text);
+}
+
+static const char *class_label(const char *text)
+{
+    return text[0] ? text : "not determined";
+}
+
+/* Orders class indices by count (descending), then by text. */
+static void order_classes(const struct cat_table *t, size_t *idx)
+{
+    for (size_t i = 0; i < t->n; i++)
+        idx[i] = i;
+    for (size_t i = 1; i < t->n; i++) {
+        const size_t v = idx[i];
+        size_t j = i;
+        while (j > 0 && (t->count[idx[j - 1]] < t->count[v] ||
+                         (t->count[idx[j - 1]] == t->count[v] && strcmp(t->text[idx[j - 1]], t->text[v]) > 0))) {
+            idx[j] = idx[j - 1];
+            j--;
+        }
+        idx[j] = v;
+    }
+}
+
+static void percent_text(char *buf, size_t size, double pct)
+{
+    if (pct > 0.0 && pct < 0.1)
+        (void)snprintf(buf, size, "<0.1 %%");
+    else
+        (void)snprintf(buf, size, "%.1f %%", pct);
+}
+
+static void slug(char *dst, size_t size, const char *text)
+{
+    size_t n = 0;
+    bool sep = false;
+    for (const char *s = class_label(text); *s != '\0' && n + 1 < size; s++) {
+        const unsigned char c = (unsigned char)*s;
+        if ((c >= 'a' && c <= 'z') || (c >= '0' && c <= '9')) {
+            if (sep && n > 0 && n + 2 < size)
+                dst[n++] = '_';
+            dst[n++] = (char)c;
+            sep = false;
+        } else if (c >= 'A' && c <= 'Z') {
+            if (sep && n > 0 && n + 2 < size)
+                dst[n++] = '_';
+            dst[n++] = (char)(c - 'A' + 'a');
+            sep = false;
+        } else {
+            sep = true;
+        }
+    }
+    dst[n] = '\0';
+}
+
+/* Writes the statistics into res. Returns SG_OK or SG_ENOMEM (adding rows). */
+static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, struct sg_result *res,
+                              struct sg_mc_detail *detail, size_t failed, const char *first_failure,
+                              struct sg_error *err)
+{
+    const size_t ok_draws = p->m - failed;
+    /* moments combined in block order: independent of the thread count */
+    struct moments *tot = calloc(p->n_slots ? p->n_slots : 1, sizeof *tot);
+    size_t *idx = malloc(CAT_MAX * sizeof *idx);
+    struct cat_table *cats = calloc(p->n_cat ? p->n_cat : 1, sizeof *cats);
+    if (tot == NULL || idx == NULL || cats == NULL) {
+        free(tot);
+        free(idx);
+        free(cats);
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory summarising the Monte Carlo draws");
+    }
+    for (size_t blk = 0; blk < p->n_blocks; blk++)
+        for (size_t s = 0; s < p->n_slots; s++)
+            moments_merge(&tot[s], &p->block_stats[blk * p->n_slots + s]);
+    for (unsigned t = 0; t < nw; t++)
+        for (size_t c = 0; c < p->n_cat; c++) {
+            for (size_t i = 0; i < ws[t].cats[c].n; i++)
+                cat_add(&cats[c], ws[t].cats[c].text[i], ws[t].cats[c].count[i]);
+            cats[c].other += ws[t].cats[c].other;
+        }
+
+    enum sg_status st = SG_OK;
+    const size_t n_quant = p->n_quant; /* rows added below are not revisited */
+    for (size_t i = 0; i < n_quant; i++) {
+        struct sg_quantity *q = &res->quantities[i];
+        char buf[SG_QNOTE_MAX];
+        if (p->kind[i] == Q_NUMERIC) {
+            const size_t s = p->slot[i];
+            const struct moments *m = &tot[s];
+            const size_t mq = (size_t)m->n;
+            if (!q->determined) {
+                if (mq > 0) {
+                    char pct[24];
+                    percent_text(pct, sizeof pct, 100.0 * (double)mq / (double)ok_draws);
+                    (void)snprintf(buf, sizeof buf, "Monte Carlo: determined in %s of draws", pct);
+                    note_append(q, buf);
+                }
+                continue;
+            }
+            size_t r = 0, qq = 0;
+            if (!sg_mc_coverage_indices(mq, SG_MC_COVERAGE, &r, &qq))
+                continue;
+            const size_t sidx = mq - (r + qq) + 1;
+            if (r > p->lo[s].n || sidx > p->hi[s].n)
+                continue; /* cannot happen: the tails are sized for M */
+            qsort(p->lo[s].v, p->lo[s].n, sizeof *p->lo[s].v, cmp_double);
+            qsort(p->hi[s].v, p->hi[s].n, sizeof *p->hi[s].v, cmp_double);
+            q->has_u = true;
+            q->u = sqrt(m->m2 / (m->n - 1.0));
+            q->low95 = p->lo[s].v[r - 1];
+            q->high95 = -p->hi[s].v[sidx - 1];
+            if (mq < ok_draws) {
+                char pct[24];
+                percent_text(pct, sizeof pct, 100.0 * (double)(ok_draws - mq) / (double)ok_draws);
+                (void)snprintf(buf, sizeof buf, "not determined in %s of draws (u and interval from the others)",
+                               pct);
+                note_append(q, buf);
+            }
+        } else if (p->kind[i] == Q_CATEGORICAL) {
+            const struct cat_table *t = &cats[p->slot[i]];
+            order_classes(t, idx);
+            size_t used = (size_t)snprintf(buf, sizeof buf, "Monte Carlo class probabilities:");
+            for (size_t j = 0; j < t->n && used < sizeof buf; j++) {
+                char pct[24];
+                percent_text(pct, sizeof pct, 100.0 * (double)t->count[idx[j]] / (double)ok_draws);
+                const int w = snprintf(buf + used, sizeof buf - used, "%s %s %s", j ? "," : "",
+                                       class_label(t->text[idx[j]]), pct);
+                used += w > 0 ? (size_t)w : 0;
+            }
+            if (t->other > 0 && used < sizeof buf) {
+                char pct[24];
+                percent_text(pct, sizeof pct, 100.0 * (double)t->other / (double)ok_draws);
+                (void)snprintf(buf + used, sizeof buf - used, ", other %s", pct);
+            }
+            note_append(q, buf);
+        }
+    }
+    /* numeric class-probability rows, after the notes (adding rows may move res->quantities) */
+    for (size_t i = 0; i < n_quant && st == SG_OK; i++) {
+        if (p->kind[i] != Q_CATEGORICAL || !is_class_row_quantity(p->names[i]))
+            continue;
+        const struct cat_table *t = &cats[p->slot[i]];
+        order_classes(t, idx);
+        for (size_t j = 0; j < t->n && st == SG_OK; j++) {
+            char name[SG_QNAME_MAX], s[SG_QNAME_MAX], note[SG_QNOTE_MAX];
+            slug(s, sizeof s, t->text[idx[j]]);
+            (void)snprintf(name, sizeof name, "%.16s_p_%.20s", p->names[i], s);
+            (void)snprintf(note, sizeof note, "Monte Carlo probability of %s '%s' (percent of %zu draws)",
+                           p->names[i], class_label(t->text[idx[j]]), ok_draws);
+            st = sg_result_add_value(res, name, "%", 100.0 * (double)t->count[idx[j]] / (double)ok_draws, note);
+        }
+    }
+    for (size_t i = 0; i < p->n_pts; i++) {
+        const struct moments *m = &tot[p->n_num + 2 * i];
+        res->points[i].percent_finer_u = m->n >= 2.0 ? sqrt(m->m2 / (m->n - 1.0)) : NO_VALUE;
+    }
+    if (st == SG_OK) {
+        char note[SG_QNOTE_MAX];
+        int w = snprintf(note, sizeof note,
+                         "Monte Carlo trials (JCGM 101:2008), seed %lu; u = standard deviation of the draws, "
+                         "low95/high95 = probabilistically symmetric 95 %% coverage interval; value = nominal",
+                         p->seed);
+        if (failed > 0 && w > 0 && (size_t)w < sizeof note) {
+            char pct[24];
+            percent_text(pct, sizeof pct, 100.0 * (double)failed / (double)p->m);
+            (void)snprintf(note + w, sizeof note - (size_t)w, "; %s refused", pct);
+        }
+        st = sg_result_add_value(res, "mc_draws", "", (double)p->m, note);
+    }
+    if (st == SG_OK && failed > 0) {
+        const double share = 100.0 * (double)failed / (double)p->m;
+        st = sg_result_add_flag(res, "mc_refused_draws", share > 1.0 ? SG_SEVERITY_WARNING : SG_SEVERITY_INFO, 0,
+                                "the reduction refused %.2g %% of the Monte Carlo draws (first: %s); the "
+                                "uncertainties come from the other draws",
+                                share, first_failure);
+    }
+    if (st == SG_OK && detail != NULL) {
+        sg_mc_detail_release(detail);
+        detail->points = calloc(p->n_pts ? p->n_pts : 1, sizeof *detail->points);
+        if (detail->points == NULL) {
+            st = SG_ENOMEM;
+        } else {
+            detail->draws = p->m;
+            detail->failed = failed;
+            (void)snprintf(detail->first_failure, sizeof detail->first_failure, "%s", first_failure);
+            detail->n_points = p->n_pts;
+            for (size_t i = 0; i < p->n_pts; i++) {
+                const struct moments *mp = &tot[p->n_num + 2 * i], *md = &tot[p->n_num + 2 * i + 1];
+                struct sg_mc_point_stats *o = &detail->points[i];
+                o->n = (size_t)mp->n;
+                o->percent_finer_mean = mp->n > 0.0 ? mp->mean : NO_VALUE;
+                o->percent_finer_u = mp->n >= 2.0 ? sqrt(mp->m2 / (mp->n - 1.0)) : NO_VALUE;
+                o->diameter_mean_mm = md->n > 0.0 ? md->mean : NO_VALUE;
+                o->diameter_u_mm = md->n >= 2.0 ? sqrt(md->m2 / (md->n - 1.0)) : NO_VALUE;
+            }
+        }
+    }
+    free(tot);
+    free(idx);
+    free(cats);
+    if (st != SG_OK)
+        return sg_error_set(err, st, 0, 0, "out of memory adding the Monte Carlo results");
+    return SG_OK;
+}
+
+static void plan_release(struct plan *p)
+{
+    free(p->names);
+    free(p->kind);
+    free(p->slot);
+    free(p->draw_index);
+    free(p->block_stats);
+    if (p->lo != NULL)
+        for (size_t s = 0; s < p->n_num; s++)
+            free(p->lo[s].v);
+    if (p->hi != NULL)
+        for (size_t s = 0; s < p->n_num; s++)
+            free(p->hi[s].v);
+    free(p->lo);
+    free(p->hi);
+}
+
+static void plan_depth(struct plan *p)
+{
+    p->depth_bivariate = p->b.depth_c0_mm.origin == SG_MC_FROM_REGISTER;
+    if (!p->depth_bivariate)
+        return;
+    /* Cholesky factor of [[v0, c], [c, v1]]; a covariance that is not
+     * positive semi-definite by round-off is clipped to it. */
+    const double v0 = p->b.depth_cov[0], c = p->b.depth_cov[1], v1 = p->b.depth_cov[2];
+    const double l11 = sqrt(v0);
+    const double l21 = c / l11;
+    const double r = v1 - l21 * l21;
+    p->depth_l[0] = l11;
+    p->depth_l[1] = l21;
+    p->depth_l[2] = r > 0.0 ? sqrt(r) : 0.0;
+}
+
+enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constants *k,
+                            const struct sg_reduce_options *opt, const struct sg_mc_options *mc,
+                            struct sg_result *res, struct sg_mc_detail *detail, struct sg_error *err)
+{
+    sg_error_clear(err);
+    if (mc == NULL || mc->draws < 2)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "Monte Carlo needs at least 2 draws, got %zu (give --mc N, "
+                                                  "N of 10000 or more; JCGM 101 suggests 1000000)",
+                            mc ? mc->draws : (size_t)0);
+    if (mc->draws > SG_MC_DRAWS_MAX)
+        return sg_error_set(err, SG_ELIMIT, 0, 0, "%zu Monte Carlo draws exceed the limit of %u (use fewer draws)",
+                            mc->draws, SG_MC_DRAWS_MAX);
+    if (res->n_points == 0)
+        return sg_error_set(err, SG_EINVAL, 0, 0,
+                            "no reduced points to propagate uncertainty through (reduce the record first)");
+
+    struct sg_reduce_options def_opt;
+    if (opt == NULL) {
+        def_opt = sg_reduce_options_default();
+        opt = &def_opt;
+    }
+    struct plan p;
+    memset(&p, 0, sizeof p);
+    p.rec = rec;
+    if (k != NULL)
+        p.k0 = *k;
+    else
+        sg_constants_from_record(rec, &p.k0);
+    p.opt = *opt;
+    p.opt.values_only = true;
+    sg_mc_budget_resolve(rec, &p.k0, &p.b);
+    plan_depth(&p);
+    p.m = mc->draws;
+    p.seed = mc->seed;
+    p.n_blocks = (p.m + SG_MC_BLOCK_DRAWS - 1) / SG_MC_BLOCK_DRAWS;
+    p.n_quant = res->n_quantities;
+    p.n_pts = res->n_points;
+    atomic_init(&p.next_block, 0);
+
+    enum sg_status st = SG_OK;
+    unsigned nw = mc->threads > 1 ? mc->threads : 1;
+    if (nw > p.n_blocks)
+        nw = (unsigned)p.n_blocks;
+    struct worker *ws = calloc(nw, sizeof *ws);
+    bool lock_ready = false;
+    p.names = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.names);
+    p.kind = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.kind);
+    p.slot = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.slot);
+    p.draw_index = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.draw_index);
+    if (ws == NULL || p.names == NULL || p.kind == NULL || p.slot == NULL || p.draw_index == NULL)
+        goto nomem;
+    /* the layout of a draw's (values-only) result: quantities it does not
+     * compute (QC status, calibration_used) get no uncertainty */
+    struct sg_result layout;
+    sg_result_init(&layout);
+    st = sg_reduce(rec, &p.k0, &p.opt, &layout, err);
+    for (size_t i = 0; st == SG_OK && i < p.n_quant; i++) {
+        const struct sg_quantity *q = &res->quantities[i];
+        (void)snprintf(p.names[i], sizeof p.names[i], "%s", q->name);
+        const struct sg_quantity *dq = sg_result_quantity(&layout, q->name);
+        if (dq == NULL || dq->is_text != q->is_text)
+            continue;
+        p.draw_index[i] = (size_t)(dq - layout.quantities);
+        if (q->is_text) {
+            if (strcmp(q->name, "calibration_used") == 0)
+                continue;
+            p.kind[i] = Q_CATEGORICAL;
+            p.slot[i] = p.n_cat++;
+        } else {
+            p.kind[i] = Q_NUMERIC;
+            p.slot[i] = p.n_num++;
+        }
+    }
+    sg_result_release(&layout);
+    if (st != SG_OK)
+        goto cleanup;
+    p.n_slots = p.n_num + 2 * p.n_pts;
+    p.block_stats = calloc(p.n_blocks * (p.n_slots ? p.n_slots : 1), sizeof *p.block_stats);
+    p.lo = calloc(p.n_num ? p.n_num : 1, sizeof *p.lo);
+    p.hi = calloc(p.n_num ? p.n_num : 1, sizeof *p.hi);
+    if (p.block_stats == NULL || p.lo == NULL || p.hi == NULL)
+        goto nomem;
+    {
+        size_t r = 1, q = 1;
+        (void)sg_mc_coverage_indices(p.m, SG_MC_COVERAGE, &r, &q);
+        const size_t s = p.m - (r + q) + 1;
+        /* r(M_q) and M_q - (r + q) + 1 stay within r(M) + 1 for every M_q <= M */
+        size_t keep = (r > s ? r : s) + 2;
+        if (keep > p.m)
+            keep = p.m;
+        const size_t cap = keep + keep / 2 + 16;
+        for (size_t i = 0; i < p.n_num; i++) {
+            p.lo[i].v = malloc(cap * sizeof *p.lo[i].v);
+            p.hi[i].v = malloc(cap * sizeof *p.hi[i].v);
+            if (p.lo[i].v == NULL || p.hi[i].v == NULL)
+                goto nomem;
+            p.lo[i].k = p.hi[i].k = keep;
+            p.lo[i].cap = p.hi[i].cap = cap;
+            p.lo[i].thresh = p.hi[i].thresh = (double)INFINITY;
+        }
+    }
+    for (unsigned t = 0; t < nw; t++) {
+        ws[t].p = &p;
+        ws[t].cats = calloc(p.n_cat ? p.n_cat : 1, sizeof *ws[t].cats);
+        if (ws[t].cats == NULL)
+            goto nomem;
+    }
+    if (pthread_mutex_init(&p.lock, NULL) != 0) {
+        st = sg_error_set(err, SG_EIO, 0, 0, "cannot create a lock for the Monte Carlo threads");
+        goto cleanup;
+    }
+    lock_ready = true;
+
+    unsigned started = 0;
+    for (unsigned t = 1; t < nw; t++) {
+        if (pthread_create(&ws[t].thread, NULL, work, &ws[t]) != 0)
+            break;
+        started = t;
+    }
+    (void)work(&ws[0]);
+    for (unsigned t = 1; t <= started; t++)
+        pthread_join(ws[t].thread, NULL);
+    /* threads that could not start leave their blocks to the others, but
+     * the calling thread has already taken all that remained */
+    size_t failed = 0, first_draw = (size_t)-1;
+    const char *first_msg = "";
+    for (unsigned t = 0; t < nw; t++) {
+        if (ws[t].status != SG_OK && st == SG_OK) {
+            st = ws[t].status;
+            if (err != NULL)
+                *err = ws[t].err;
+        }
+        failed += ws[t].failed;
+        if (ws[t].failed > 0 && ws[t].first_failure_draw < first_draw) {
+            first_draw = ws[t].first_failure_draw;
+            first_msg = ws[t].first_failure;
+        }
+    }
+    if (st == SG_OK && atomic_load(&p.next_block) < p.n_blocks)
+        st = sg_error_set(err, SG_EIO, 0, 0, "Monte Carlo threads stopped before all draws were made");
+    if (st == SG_OK && failed == p.m)
+        st = sg_error_set(err, SG_EDOM, 0, 0,
+                          "the reduction refused every Monte Carlo draw (first: %s; check the input "
+                          "uncertainties u_*)",
+                          first_msg);
+    if (st == SG_OK)
+        st = publish(&p, ws, nw, res, detail, failed, first_msg, err);
+    goto cleanup;
+
+nomem:
+    st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory for %zu Monte Carlo draws (use fewer draws)", p.m);
+cleanup:
+    if (lock_ready)
+        pthread_mutex_destroy(&p.lock);
+    if (ws != NULL)
+        for (unsigned t = 0; t < nw; t++)
+            free(ws[t].cats);
+    free(ws);
+    plan_release(&p);
+    return st;
+}
 
 enum sg_status sg_mc_run(const struct sg_record *rec, const struct sg_constants *k,
                          const struct sg_reduce_options *opt, const struct sg_mc_options *mc,
                          struct sg_result *res, struct sg_error *err)
 {
-    (void)rec;
-    (void)k;
-    (void)opt;
-    (void)mc;
-    (void)res;
-    return sg_error_set(err, SG_EINVAL, 0, 0, "Monte Carlo uncertainty is not available in this build");
+    return sg_mc_run_ex(rec, k, opt, mc, res, NULL, err);
 }
