@@ -361,7 +361,7 @@ static enum sg_status rule_readings(const struct sg_constants *k, const struct s
         tally_where(&fall, "reading", where, sizeof where);
         st = flag(res, "not_falling", fall.worst_line, err,
                   "percent of specimen %.4g %% is %.3g points above an earlier reading's, but it must fall "
-                  "with time (tolerance %g points); %s (check those readings, the blank and the temperature)",
+                  "with time (noise tolerance %g); %s (check those readings, the blank and the temperature)",
                   fall.worst, fall.worst_aux, lim->monotone_tolerance_pct, where);
     }
     if (st == SG_OK && range.count > 0) {
@@ -493,7 +493,7 @@ static enum sg_status rule_monotone(const struct sg_qc_limits *lim, struct sg_re
     char where[96];
     tally_where(&rise, "point", where, sizeof where);
     return flag(res, "non_monotone", rise.worst_line, err,
-                "the curve rises to %.4g %% at %.3g mm, %.3g points above a coarser point (tolerance %g points); %s "
+                "the curve rises to %.4g %% at %.3g mm, %.3g points above a coarser point (noise tolerance %g); %s "
                 "(check the splice: specimen mass, split sieve percentage, dispersion)",
                 rise.worst, rise.worst_aux, rise.worst_excess, lim->monotone_tolerance_pct, where);
 }
