@@ -8,6 +8,7 @@
 #include <limits.h>
 #include <pthread.h>
 #include <stdatomic.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -64,7 +65,12 @@ struct job {
     enum job_status status;
     char id[SG_ID_MAX];
     size_t schema;   /* index into the batch's schema table */
-    char *values;    /* summary values, '\x1f'-separated, in the schema's order */
+    /* Summary values, '\x1f'-separated in the schema's order, kept in the
+     * worker's spill file (struct batch) rather than in memory. */
+    bool has_values;
+    size_t spill;    /* which spill file */
+    off_t spill_off; /* where in it */
+    size_t spill_len;
 };
 
 /* Distinct lists of quantity names seen in the batch (usually one). */
@@ -75,13 +81,19 @@ struct schema_table {
 };
 
 /* Test ids claimed by a written test, so two records with one id cannot
- * overwrite each other's files. */
+ * overwrite each other's files. The strings are the jobs' own (job->id,
+ * job->path); an open-addressing hash table finds them in constant time. */
 struct id_set {
     pthread_mutex_t lock;
-    char **ids;
-    char **owners;
+    const char **ids;
+    const char **owners;
     size_t n, cap;
+    size_t *slots;  /* index + 1 into ids, 0 = empty; n_slots a power of two */
+    size_t n_slots;
 };
+
+/* Most workers a batch runs (the -j limit). */
+#define MAX_WORKERS 256
 
 struct batch {
     const struct reduce_cfg *cfg;
@@ -91,6 +103,11 @@ struct batch {
     struct schema_table schemas;
     struct id_set ids;
     pthread_mutex_t stderr_lock;
+    /* One anonymous temporary file per worker (in the output folder, unlinked
+     * at once) holds the summary values of its tests until the batch summary
+     * is written, so memory stays flat however large the archive. */
+    FILE *spill[MAX_WORKERS];
+    atomic_size_t n_spill;
 };
 
 /* ---- collecting input files ---- */
@@ -231,72 +248,139 @@ static size_t schema_intern(struct schema_table *t, const char *names, bool *oom
     return i;
 }
 
-/* Claims id for path; false (with the owner) when another record has it. */
+/* FNV-1a hash of a string (Fowler, Noll, Vo; public domain). */
+static size_t hash_string(const char *str)
+{
+    uint64_t h = 14695981039346656037u;
+    for (const unsigned char *c = (const unsigned char *)str; *c; c++) {
+        h ^= *c;
+        h *= 1099511628211u;
+    }
+    return (size_t)h;
+}
+
+/* The slot that holds id, or the empty slot where it would go. */
+static size_t *id_slot(const struct id_set *s, const char *id)
+{
+    const size_t mask = s->n_slots - 1;
+    size_t i = hash_string(id) & mask;
+    while (s->slots[i] != 0 && strcmp(s->ids[s->slots[i] - 1], id) != 0)
+        i = (i + 1) & mask;
+    return &s->slots[i];
+}
+
+/* Keeps the table at most half full. false when out of memory. */
+static bool id_reserve(struct id_set *s)
+{
+    if (2 * (s->n + 1) <= s->n_slots)
+        return true;
+    const size_t n_slots = s->n_slots ? 2 * s->n_slots : 1024;
+    size_t *slots = calloc(n_slots, sizeof *slots);
+    if (slots == NULL)
+        return false;
+    free(s->slots);
+    s->slots = slots;
+    s->n_slots = n_slots;
+    for (size_t i = 0; i < s->n; i++)
+        *id_slot(s, s->ids[i]) = i + 1;
+    return true;
+}
+
+/* Claims id for path (both must outlive the set); false (with the owner)
+ * when another record has it. Out of memory, the claim is not recorded. */
 static bool id_claim(struct id_set *s, const char *id, const char *path, const char **owner)
 {
     bool ok = true;
     pthread_mutex_lock(&s->lock);
-    for (size_t i = 0; i < s->n; i++)
-        if (strcmp(s->ids[i], id) == 0) {
-            *owner = s->owners[i];
+    if (id_reserve(s)) {
+        size_t *slot = id_slot(s, id);
+        if (*slot != 0) {
+            *owner = s->owners[*slot - 1];
             ok = false;
-            break;
-        }
-    if (ok) {
-        if (s->n == s->cap) {
-            size_t cap = s->cap ? 2 * s->cap : 256;
-            char **a = realloc(s->ids, cap * sizeof *a);
-            if (a != NULL)
-                s->ids = a;
-            char **b = realloc(s->owners, cap * sizeof *b);
-            if (b != NULL)
-                s->owners = b;
-            if (a != NULL && b != NULL)
-                s->cap = cap;
-        }
-        if (s->n < s->cap) {
-            s->ids[s->n] = strdup(id);
-            s->owners[s->n] = strdup(path);
-            s->n++;
+        } else {
+            if (s->n == s->cap) {
+                const size_t cap = s->cap ? 2 * s->cap : 256;
+                const char **a = realloc(s->ids, cap * sizeof *a);
+                if (a != NULL)
+                    s->ids = a;
+                const char **o = realloc(s->owners, cap * sizeof *o);
+                if (o != NULL)
+                    s->owners = o;
+                if (a != NULL && o != NULL)
+                    s->cap = cap;
+            }
+            if (s->n < s->cap) {
+                s->ids[s->n] = id;
+                s->owners[s->n] = path;
+                *slot = ++s->n;
+            }
         }
     }
     pthread_mutex_unlock(&s->lock);
     return ok;
 }
 
-/* Serialises the summary: names and values joined by '\x1f'. */
-static char *join_quantities(const struct sg_result *res, bool names)
+/* Serialises the summary (names or values) joined by '\x1f' into *buf
+ * (grown as needed, kept by the caller for the next record). Returns the
+ * length, or (size_t)-1 when out of memory. */
+static size_t join_quantities(const struct sg_result *res, bool names, char **buf, size_t *cap)
 {
-    size_t cap = 256, len = 0;
-    char *s = malloc(cap);
-    if (s == NULL)
-        return NULL;
-    s[0] = '\0';
+    size_t len = 0;
     for (size_t i = 0; i < res->n_quantities; i++) {
         const struct sg_quantity *q = &res->quantities[i];
-        char buf[SG_QTEXT_MAX + 8];
+        char num[32];
+        const char *v = num;
         if (names)
-            (void)snprintf(buf, sizeof buf, "%s", q->name);
+            v = q->name;
         else if (!q->determined)
-            buf[0] = '\0';
+            v = "";
         else if (q->is_text)
-            (void)snprintf(buf, sizeof buf, "%s", q->text);
+            v = q->text;
         else
-            sg_csvout_number(q->value, buf, sizeof buf);
-        const size_t need = len + strlen(buf) + 2;
-        if (need > cap) {
-            while (cap < need)
-                cap *= 2;
-            char *p = realloc(s, cap);
-            if (p == NULL) {
-                free(s);
-                return NULL;
-            }
-            s = p;
+            sg_csvout_number(q->value, num, sizeof num);
+        const size_t vlen = strlen(v), need = len + vlen + 2;
+        if (need > *cap) {
+            size_t c = *cap ? *cap : 1024;
+            while (c < need)
+                c *= 2;
+            char *p = realloc(*buf, c);
+            if (p == NULL)
+                return (size_t)-1;
+            *buf = p;
+            *cap = c;
         }
-        len += (size_t)sprintf(s + len, "%s%s", i ? "\x1f" : "", buf);
+        if (i > 0)
+            (*buf)[len++] = '\x1f';
+        memcpy(*buf + len, v, vlen);
+        len += vlen;
     }
-    return s;
+    if (*cap == 0) {
+        char *p = malloc(1);
+        if (p == NULL)
+            return (size_t)-1;
+        *buf = p;
+        *cap = 1;
+    }
+    (*buf)[len] = '\0';
+    return len;
+}
+
+/* true when res's quantity names are, in order, the '\x1f'-joined names. */
+static bool same_names(const struct sg_result *res, const char *names)
+{
+    const char *p = names;
+    for (size_t i = 0; i < res->n_quantities; i++) {
+        if (i > 0 && *p++ != '\x1f')
+            return false;
+        const char *n = res->quantities[i].name;
+        while (*n != '\0' && *p == *n) {
+            p++;
+            n++;
+        }
+        if (*n != '\0')
+            return false;
+    }
+    return *p == '\0';
 }
 
 /* ---- one record ---- */
@@ -382,7 +466,84 @@ static void report_locked(struct batch *b, const char *file, const struct sg_err
     pthread_mutex_unlock(&b->stderr_lock);
 }
 
-static void run_job(struct batch *b, struct job *job, struct sg_record *rec, struct sg_result *res)
+/* What one worker keeps from record to record: the summary schema it last
+ * used (a private copy of the names, so they are not joined and looked up
+ * again for every record), a buffer for joining, and its spill file. */
+struct worker_state {
+    char *schema_names;
+    size_t schema;
+    char *buf;
+    size_t cap;
+    FILE *spill;
+    size_t spill_index;
+    off_t spill_end;
+};
+
+/* Opens the worker's spill file on first use. */
+static enum sg_status spill_open(struct batch *b, struct worker_state *w, struct sg_error *err)
+{
+    if (w->spill != NULL)
+        return SG_OK;
+    const size_t i = atomic_fetch_add(&b->n_spill, 1);
+    char path[PATH_MAX];
+    if (i >= MAX_WORKERS ||
+        snprintf(path, sizeof path, "%s/.sedgrade-batch.XXXXXX", b->cfg->out_dir) >= (int)sizeof path)
+        return sg_error_set(err, SG_EIO, 0, 0, "cannot keep the batch summary values (output path too long)");
+    const int fd = mkstemp(path);
+    FILE *fp = fd >= 0 ? fdopen(fd, "w+") : NULL;
+    if (fp == NULL) {
+        const int e = errno;
+        if (fd >= 0)
+            (void)close(fd);
+        (void)unlink(path);
+        return sg_error_set(err, SG_EIO, 0, 0, "cannot create a temporary file in '%s': %s", b->cfg->out_dir,
+                            strerror(e));
+    }
+    (void)unlink(path);
+    b->spill[i] = fp;
+    w->spill = fp;
+    w->spill_index = i;
+    w->spill_end = 0;
+    return SG_OK;
+}
+
+/* Records the test's summary schema and spills its values. */
+static enum sg_status keep_summary(struct batch *b, struct worker_state *w, struct job *job,
+                                   const struct sg_result *res, struct sg_error *err)
+{
+    if (w->schema_names == NULL || !same_names(res, w->schema_names)) {
+        if (join_quantities(res, true, &w->buf, &w->cap) == (size_t)-1)
+            return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+        char *names = strdup(w->buf);
+        bool oom = names == NULL;
+        const size_t schema = oom ? 0 : schema_intern(&b->schemas, names, &oom);
+        if (oom) {
+            free(names);
+            return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+        }
+        free(w->schema_names);
+        w->schema_names = names;
+        w->schema = schema;
+    }
+    const size_t len = join_quantities(res, false, &w->buf, &w->cap);
+    if (len == (size_t)-1)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+    enum sg_status st = spill_open(b, w, err);
+    if (st != SG_OK)
+        return st;
+    if (fwrite(w->buf, 1, len, w->spill) != len)
+        return sg_error_set(err, SG_EIO, 0, 0, "cannot keep the batch summary values: %s", strerror(errno));
+    job->schema = w->schema;
+    job->spill = w->spill_index;
+    job->spill_off = w->spill_end;
+    job->spill_len = len;
+    job->has_values = true;
+    w->spill_end += (off_t)len;
+    return SG_OK;
+}
+
+static void run_job(struct batch *b, struct worker_state *w, struct job *job, struct sg_record *rec,
+                    struct sg_result *res)
 {
     const struct reduce_cfg *cfg = b->cfg;
     struct sg_error err;
@@ -402,7 +563,7 @@ static void run_job(struct batch *b, struct job *job, struct sg_record *rec, str
     (void)snprintf(job->id, sizeof job->id, "%s", rec->id);
     if (st == SG_OK) {
         const char *owner = NULL;
-        if (!id_claim(&b->ids, rec->id, job->path, &owner))
+        if (!id_claim(&b->ids, job->id, job->path, &owner))
             st = sg_error_set(&err, SG_EINVAL, rec->pos_id.line, rec->pos_id.col,
                               "test id '%s' is also used by '%s' (give each test its own id)", rec->id,
                               owner);
@@ -434,16 +595,10 @@ static void run_job(struct batch *b, struct job *job, struct sg_record *rec, str
         }
         pthread_mutex_unlock(&b->stderr_lock);
     }
-    bool oom = false;
-    char *names = join_quantities(res, true);
-    job->values = join_quantities(res, false);
-    if (names != NULL)
-        job->schema = schema_intern(&b->schemas, names, &oom);
-    if (names == NULL || job->values == NULL || oom) {
-        free(job->values);
-        job->values = NULL;
+    if (keep_summary(b, w, job, res, &err) != SG_OK) {
+        report_locked(b, job->path, &err);
+        job->status = JOB_IO_FAILED;
     }
-    free(names);
     sg_record_release(rec);
 }
 
@@ -452,16 +607,19 @@ static void *worker(void *arg)
     struct batch *b = arg;
     struct sg_record rec;
     struct sg_result res;
+    struct worker_state w = {0};
     sg_record_init(&rec);
     sg_result_init(&res);
     for (;;) {
         const size_t i = atomic_fetch_add(&b->next, 1);
         if (i >= b->n_jobs)
             break;
-        run_job(b, &b->jobs[i], &rec, &res);
+        run_job(b, &w, &b->jobs[i], &rec, &res);
     }
     sg_result_release(&res);
     sg_record_release(&rec);
+    free(w.schema_names);
+    free(w.buf);
     return NULL;
 }
 
@@ -512,19 +670,22 @@ static void csv_field(FILE *fp, const char *s, bool first)
 
 static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
 {
-    /* Columns: the union of quantity names in order of first appearance. */
+    /* Columns: the union of quantity names in order of first appearance.
+     * col_of[s * MAX_COLUMNS + j] is 1 + the position of column j among the
+     * fields of schema s (0: absent), worked out once per schema. */
     char *cols[MAX_COLUMNS];
     size_t n_cols = 0;
-    char **schema_fields = calloc(b->schemas.n ? b->schemas.n : 1, sizeof *schema_fields);
-    size_t *schema_n = calloc(b->schemas.n ? b->schemas.n : 1, sizeof *schema_n);
+    const size_t n_schemas = b->schemas.n;
+    size_t *col_of = calloc((n_schemas ? n_schemas : 1) * MAX_COLUMNS, sizeof *col_of);
     char *vals[MAX_COLUMNS];
+    char *buf = NULL;
+    size_t cap = 0;
     enum sg_status st = SG_OK;
-    if (schema_fields == NULL || schema_n == NULL) {
+    if (col_of == NULL) {
         st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
         goto cleanup;
     }
-    for (size_t s = 0; s < b->schemas.n; s++) {
-        schema_fields[s] = b->schemas.names[s];
+    for (size_t s = 0; s < n_schemas; s++) {
         char *fields[MAX_COLUMNS];
         char *copy = strdup(b->schemas.names[s]);
         if (copy == NULL) {
@@ -532,16 +693,29 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
             goto cleanup;
         }
         const size_t nf = split_fields(copy, fields, MAX_COLUMNS);
-        schema_n[s] = nf;
         for (size_t i = 0; i < nf; i++) {
             size_t j = 0;
             while (j < n_cols && strcmp(cols[j], fields[i]) != 0)
                 j++;
-            if (j == n_cols && n_cols < MAX_COLUMNS)
-                cols[n_cols++] = strdup(fields[i]);
+            if (j == n_cols && n_cols < MAX_COLUMNS) {
+                if ((cols[n_cols] = strdup(fields[i])) == NULL) {
+                    free(copy);
+                    st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
+                    goto cleanup;
+                }
+                n_cols++;
+            }
+            if (j < n_cols)
+                col_of[s * MAX_COLUMNS + j] = i + 1;
         }
         free(copy);
     }
+    const size_t n_spill = atomic_load(&b->n_spill);
+    for (size_t w = 0; w < n_spill && w < MAX_WORKERS; w++)
+        if (b->spill[w] != NULL && fflush(b->spill[w]) != 0) {
+            st = sg_error_set(err, SG_EIO, 0, 0, "cannot keep the batch summary values: %s", strerror(errno));
+            goto cleanup;
+        }
     char path[PATH_MAX];
     if (snprintf(path, sizeof path, "%s/summary.csv", b->cfg->out_dir) >= (int)sizeof path) {
         st = sg_error_set(err, SG_EIO, 0, 0, "output path is too long");
@@ -554,39 +728,48 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
     csv_field(f.fp, "status", false);
     csv_field(f.fp, "file", false);
     for (size_t j = 0; j < n_cols; j++)
-        csv_field(f.fp, cols[j] ? cols[j] : "", false);
+        csv_field(f.fp, cols[j], false);
     fputc('\n', f.fp);
     for (size_t i = 0; i < b->n_jobs; i++) {
-        struct job *job = &b->jobs[i];
+        const struct job *job = &b->jobs[i];
         csv_field(f.fp, job->id, true);
         csv_field(f.fp, job_status_name(job->status), false);
         csv_field(f.fp, job->path, false);
-        char *names[MAX_COLUMNS];
-        size_t nv = 0, nn = 0;
-        char *ncopy = NULL;
-        if (job->values != NULL) {
-            nv = split_fields(job->values, vals, MAX_COLUMNS);
-            ncopy = strdup(b->schemas.names[job->schema]);
-            nn = split_fields(ncopy, names, MAX_COLUMNS);
-        }
-        for (size_t j = 0; j < n_cols; j++) {
-            const char *v = "";
-            for (size_t q = 0; q < nn && q < nv; q++)
-                if (cols[j] != NULL && strcmp(names[q], cols[j]) == 0) {
-                    v = vals[q];
-                    break;
+        size_t nv = 0;
+        if (job->has_values) {
+            if (job->spill_len + 1 > cap) {
+                char *p = realloc(buf, job->spill_len + 1);
+                if (p == NULL) {
+                    sg_atomic_abort(&f);
+                    st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
+                    goto cleanup;
                 }
-            csv_field(f.fp, v, false);
+                buf = p;
+                cap = job->spill_len + 1;
+            }
+            if (pread(fileno(b->spill[job->spill]), buf, job->spill_len, job->spill_off) !=
+                (ssize_t)job->spill_len) {
+                sg_atomic_abort(&f);
+                st = sg_error_set(err, SG_EIO, 0, 0, "cannot read back the batch summary values: %s",
+                                  strerror(errno ? errno : EIO));
+                goto cleanup;
+            }
+            buf[job->spill_len] = '\0';
+            nv = split_fields(buf, vals, MAX_COLUMNS);
+        }
+        const size_t *map = &col_of[job->schema * MAX_COLUMNS];
+        for (size_t j = 0; j < n_cols; j++) {
+            const size_t q = nv > 0 ? map[j] : 0;
+            csv_field(f.fp, q > 0 && q <= nv ? vals[q - 1] : "", false);
         }
         fputc('\n', f.fp);
-        free(ncopy);
     }
     st = sg_atomic_commit(&f, err);
 cleanup:
     for (size_t j = 0; j < n_cols; j++)
         free(cols[j]);
-    free(schema_fields);
-    free(schema_n);
+    free(col_of);
+    free(buf);
     return st;
 }
 
@@ -800,6 +983,7 @@ int sg_cli_reduce(int argc, char **argv)
     for (size_t i = 0; i < files.n; i++)
         b.jobs[i].path = files.items[i];
     atomic_init(&b.next, 0);
+    atomic_init(&b.n_spill, 0);
     pthread_mutex_init(&b.schemas.lock, NULL);
     pthread_mutex_init(&b.ids.lock, NULL);
     pthread_mutex_init(&b.stderr_lock, NULL);
@@ -847,18 +1031,16 @@ int sg_cli_reduce(int argc, char **argv)
     if (rc == SG_EXIT_OK)
         rc = n_io ? SG_EXIT_IO : (n_refused + walk_problems) ? SG_EXIT_INPUT : n_failed_qc ? SG_EXIT_QC : SG_EXIT_OK;
 
-    for (size_t i = 0; i < b.n_jobs; i++)
-        free(b.jobs[i].values);
+    for (size_t w = 0; w < atomic_load(&b.n_spill) && w < MAX_WORKERS; w++)
+        if (b.spill[w] != NULL)
+            (void)fclose(b.spill[w]);
     free(b.jobs);
     for (size_t i = 0; i < b.schemas.n; i++)
         free(b.schemas.names[i]);
     free(b.schemas.names);
-    for (size_t i = 0; i < b.ids.n; i++) {
-        free(b.ids.ids[i]);
-        free(b.ids.owners[i]);
-    }
     free(b.ids.ids);
     free(b.ids.owners);
+    free(b.ids.slots);
     pthread_mutex_destroy(&b.schemas.lock);
     pthread_mutex_destroy(&b.ids.lock);
     pthread_mutex_destroy(&b.stderr_lock);
