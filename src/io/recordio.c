@@ -573,10 +573,11 @@ static void key_slot(struct sg_record *r, enum key k, double **num, bool **has, 
  * n, with *nearest the index of the closest name by edit distance. */
 static size_t lookup(const char *word, const char *const *names, size_t n, size_t *nearest)
 {
-    size_t best = 0, best_d = (size_t)-1;
-    for (size_t i = 0; i < n; i++) {
+    for (size_t i = 0; i < n; i++)
         if (same_word(word, names[i]))
             return i;
+    size_t best = 0, best_d = (size_t)-1;
+    for (size_t i = 0; i < n; i++) {
         const size_t d = edit_distance(word, names[i]);
         if (d < best_d) {
             best_d = d;
