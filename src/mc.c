@@ -292,8 +292,12 @@ static double gauss(gsl_rng *g, double u)
     return u > 0.0 ? gsl_ran_gaussian_ziggurat(g, u) : 0.0;
 }
 
+/* A weighed mass: never below zero; a nominal 0 (an empty sieve) is known
+ * exactly and is not varied, so the coarsest sieve stays at 100 % passing. */
 static double mass(double nominal, gsl_rng *g, double u)
 {
+    if (nominal == 0.0)
+        return 0.0;
     const double x = nominal + gauss(g, u);
     return x < 0.0 ? 0.0 : x;
 }
@@ -617,6 +621,8 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
             char name[SG_QNAME_MAX], s[SG_QNAME_MAX], note[SG_QNOTE_MAX];
             slug(s, sizeof s, t->text[idx[j]]);
             (void)snprintf(name, sizeof name, "%.16s_p_%.20s", p->names[i], s);
+            for (size_t n = strlen(name); n > 0 && name[n - 1] == '_'; n--)
+                name[n - 1] = '\0'; /* a slug cut after a separator */
             (void)snprintf(note, sizeof note, "Monte Carlo probability of %s '%s' (percent of %zu draws)",
                            p->names[i], class_label(t->text[idx[j]]), ok_draws);
             st = sg_result_add_value(res, name, "%", 100.0 * (double)t->count[idx[j]] / (double)ok_draws, note);

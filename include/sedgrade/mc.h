@@ -26,8 +26,15 @@
  * defaults below unless stated otherwise) is drawn from a normal
  * distribution (JCGM 101 6.4.7: the maximum-entropy PDF for an estimate and
  * a standard uncertainty). Values drawn below zero for masses are set to 0
- * (a mass cannot be negative); any other draw the reduction refuses (e.g. a
- * temperature pushed outside 0-40 C) counts as a failed draw. */
+ * (a mass cannot be negative) and a mass of exactly 0 (an empty sieve) is
+ * not varied; any other draw the reduction refuses (e.g. a temperature
+ * pushed outside 0-40 C) counts as a refused draw.
+ *
+ * Not included (add them to the laboratory's own budget if they matter):
+ * sampling and subsampling of the specimen (often the largest term for the
+ * sieve part, METHODS.md 11.3), sieve aperture deviations, the suspension
+ * volume, the thermometer's calibration offset, dispersion efficiency and
+ * the model error of Stokes' law itself. */
 
 /* Hydrometer reading, per row: the scale is read to one division (one
  * reading unit on either scale), so the resolution error is rectangular with
@@ -72,8 +79,6 @@
 /* Pipette solids (net dry residue), per row, g (common practice: a 0.1 mg
  * analytical balance, weighing by difference plus drying). */
 #define SG_MC_U_SOLIDS_G 0.0005
-/* The suspension volume is not varied (a graduated cylinder's mark is not
- * in the register); neither are the thermometer offset and sieve apertures. */
 
 /* Coverage probability of the reported intervals (SPEC low95/high95). */
 #define SG_MC_COVERAGE 0.95
@@ -89,7 +94,7 @@
  * numeric summary rows "<name>_p_<class>" (percent of draws). Every
  * categorical quantity (except calibration_used) gets its class
  * probabilities in its note. */
-#define SG_MC_CLASS_ROWS_FOR "usda_texture uscs_grading"
+#define SG_MC_CLASS_ROWS_FOR "usda_texture uscs_grading uscs_symbol"
 
 struct sg_mc_options {
     size_t draws;        /* number of Monte Carlo trials M, 2..SG_MC_DRAWS_MAX */
