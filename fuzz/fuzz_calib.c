@@ -21,7 +21,7 @@ static void exercise(const struct sg_cal_instrument *ins)
         for (unsigned p = 0; p < SG_CAL_PART_COUNT; p++)
             if (parts & (1u << p)) {
                 (void)sg_cal_evaluate(ins, &ins->events[i], (enum sg_cal_part)p, 2780.0, &res, NULL);
-                (void)sg_cal_evaluate(ins, &ins->events[i], (enum sg_cal_part)p, NAN, &res, NULL);
+                (void)sg_cal_evaluate(ins, &ins->events[i], (enum sg_cal_part)p, (double)NAN, &res, NULL);
             }
         sg_cal_entry_label(ins, i, label, sizeof label);
     }

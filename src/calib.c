@@ -131,10 +131,10 @@ unsigned sg_cal_event_parts(const struct sg_cal_event *ev)
 void sg_cal_event_init(struct sg_cal_event *ev)
 {
     memset(ev, 0, sizeof *ev);
-    ev->water_temp_c = NAN;
-    ev->air_density_g_ml = NAN;
-    ev->weights_density_g_ml = NAN;
-    ev->expansion_per_k = NAN;
+    ev->water_temp_c = (double)NAN;
+    ev->air_density_g_ml = (double)NAN;
+    ev->weights_density_g_ml = (double)NAN;
+    ev->expansion_per_k = (double)NAN;
 }
 
 void sg_cal_event_release(struct sg_cal_event *ev)
@@ -250,7 +250,7 @@ double sg_cal_line_u(const struct sg_cal_line *line, double x)
 double sg_cal_depth_rise_term_mm(double bulb_volume_ml, double bulb_length_mm, double area_mm2)
 {
     if (!(bulb_volume_ml > 0.0) || !(bulb_length_mm > 0.0) || !(area_mm2 > 0.0) || !isfinite(area_mm2))
-        return NAN;
+        return (double)NAN;
     return 0.5 * (bulb_length_mm - MM3_PER_ML * bulb_volume_ml / area_mm2);
 }
 
@@ -258,10 +258,10 @@ double sg_cal_pipette_z_ml_g(double temp_c, double air_density_g_ml, double weig
 {
     if (!(temp_c >= SG_WATER_TEMP_MIN_C && temp_c <= SG_WATER_TEMP_MAX_C) || !(air_density_g_ml >= 0.0) ||
         !(weights_density_g_ml > 0.0))
-        return NAN;
+        return (double)NAN;
     const double rho_w = sg_water_density_kg_m3(temp_c) / 1000.0; /* kg/m3 -> g/mL */
     if (!(rho_w > air_density_g_ml))
-        return NAN;
+        return (double)NAN;
     return (1.0 / (rho_w - air_density_g_ml)) * (1.0 - air_density_g_ml / weights_density_g_ml);
 }
 
@@ -270,14 +270,14 @@ double sg_cal_pipette_volume_ml(double mass_g, double temp_c, double air_density
 {
     const double z = sg_cal_pipette_z_ml_g(temp_c, air_density_g_ml, weights_density_g_ml);
     if (!isfinite(z) || !(mass_g > 0.0) || !isfinite(expansion_per_k))
-        return NAN;
+        return (double)NAN;
     return mass_g * z * (1.0 - expansion_per_k * (temp_c - SG_CAL_GLASS_REF_TEMP_C));
 }
 
 double sg_cal_scale_reference(enum sg_scale scale, double rho_g_ml)
 {
     if (!(rho_g_ml > 0.0) || !isfinite(rho_g_ml))
-        return NAN;
+        return (double)NAN;
     switch (scale) {
     case SG_SCALE_DENSITY:
         return (rho_g_ml - 1.0) * 1000.0;
@@ -288,7 +288,7 @@ double sg_cal_scale_reference(enum sg_scale scale, double rho_g_ml)
     }
     case SG_SCALE_NONE: break;
     }
-    return NAN;
+    return (double)NAN;
 }
 
 /* ---- limits ---------------------------------------------------------------- */
@@ -364,8 +364,8 @@ static double max_abs(const double *v, size_t n)
 
 static void range_of(const double *v, size_t n, double *lo, double *hi)
 {
-    *lo = INFINITY;
-    *hi = -INFINITY;
+    *lo = (double)INFINITY;
+    *hi = -(double)INFINITY;
     for (size_t i = 0; i < n; i++) {
         if (v[i] < *lo)
             *lo = v[i];
@@ -467,7 +467,7 @@ static enum sg_status eval_depth(const struct sg_cal_instrument *ins, const stru
         for (size_t i = 0; i < res->n; i++)
             res->y[i] += res->rise_term_mm;
     } else {
-        res->line.c0 = NAN;
+        res->line.c0 = (double)NAN;
     }
     range_of(res->x, res->n, &res->xmin, &res->xmax);
     res->worst = max_abs(res->residual, res->n);
@@ -802,7 +802,7 @@ static enum sg_status validate_event(const struct sg_cal_instrument *ins, const 
         struct sg_cal_result *res = malloc(sizeof *res);
         if (res == NULL)
             return sg_error_set(err, SG_ENOMEM, ev->line, 1, "out of memory");
-        const enum sg_status st = sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, NAN, res, err);
+        const enum sg_status st = sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, (double)NAN, res, err);
         free(res);
         if (st != SG_OK)
             return st;
@@ -923,7 +923,7 @@ enum sg_status sg_cal_status(const struct sg_cal_instrument *ins, struct sg_date
             continue;
         }
         const struct sg_cal_event *ev = &ins->events[out->entry[p]];
-        st = sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, NAN, res, err);
+        st = sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, (double)NAN, res, err);
         if (st != SG_OK)
             break;
         if (!res->accepted && out->reason[0] == '\0') {

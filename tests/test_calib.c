@@ -137,7 +137,7 @@ Test(calib, line_fit_two_points_has_no_scatter)
 
 Test(calib, line_fit_errors)
 {
-    const double x[] = {1.0, 1.0, 1.0}, y[] = {1.0, 2.0, 3.0}, bad[] = {1.0, NAN, 3.0};
+    const double x[] = {1.0, 1.0, 1.0}, y[] = {1.0, 2.0, 3.0}, bad[] = {1.0, (double)NAN, 3.0};
     struct sg_cal_line l;
     struct sg_error err;
     cr_assert_eq(sg_cal_fit_line(x, y, 1, &l, NULL, &err), SG_EINVAL);
@@ -153,7 +153,7 @@ Test(calib, depth_rise_term)
     cr_assert_float_eq(sg_cal_depth_rise_term_mm(67.0, 140.0, 2780.0), 0.5 * (140.0 - 67000.0 / 2780.0), 1e-12);
     cr_assert_float_eq(sg_cal_depth_rise_term_mm(67.0, 140.0, 2780.0), 57.95, 0.01);
     cr_assert(isnan(sg_cal_depth_rise_term_mm(0.0, 140.0, 2780.0)));
-    cr_assert(isnan(sg_cal_depth_rise_term_mm(67.0, 140.0, NAN)));
+    cr_assert(isnan(sg_cal_depth_rise_term_mm(67.0, 140.0, (double)NAN)));
 }
 
 /* ---- depth (METHODS.md 3.3 / 10.1 / 13.3) ----------------------------------- */
@@ -216,7 +216,7 @@ Test(calib, depth_without_area_has_slope_and_decision_only)
     struct sg_cal_instrument ins;
     hydrometer_152h(&ins);
     struct sg_cal_result r;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_DEPTH, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_DEPTH, (double)NAN, &r, NULL), SG_OK);
     cr_assert(!r.has_intercept);
     cr_assert(isnan(r.line.c0));
     cr_assert_float_eq(r.neck_c0_mm, 105.0, 1e-9);
@@ -280,7 +280,7 @@ Test(calib, depth_errors)
     cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_DEPTH, 2780.0, &r, &err), SG_EINVAL);
     cr_assert(strstr(err.msg, "must fall") != NULL, "%s", err.msg);
     /* a part the event does not carry */
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_BLANK, NAN, &r, &err), SG_ENOTFOUND);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_BLANK, (double)NAN, &r, &err), SG_ENOTFOUND);
     sg_cal_instrument_release(&ins);
 }
 
@@ -304,21 +304,21 @@ Test(calib, meniscus_hand_calculation)
     limit(&ev, "meniscus_spread", 0.4);
     ev_push(&ins, &ev);
     struct sg_cal_result r;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_MENISCUS, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_MENISCUS, (double)NAN, &r, NULL), SG_OK);
     cr_assert_float_eq(r.value, 7.0 / 6.0, 1e-12);
     cr_assert_float_eq(r.sd, 0.288675134594813, 1e-12);
     cr_assert_float_eq(r.u, 1.0 / 3.0, 1e-12);
     cr_assert_float_eq(r.worst, 0.5, 1e-12);
     cr_assert(!r.accepted, "spread 0.5 > 0.4: %s", r.decision);
     ins.events[0].limits[0].value = 0.5;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_MENISCUS, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_MENISCUS, (double)NAN, &r, NULL), SG_OK);
     cr_assert(r.accepted, "%s", r.decision);
     /* bottom read above top: refused */
     ins.events[0].obs[0].y = -2.0;
     ins.events[0].obs[1].y = -2.0;
     ins.events[0].obs[2].y = -2.0;
     struct sg_error err;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_MENISCUS, NAN, &r, &err), SG_EINVAL);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_MENISCUS, (double)NAN, &r, &err), SG_EINVAL);
     cr_assert(strstr(err.msg, "negative") != NULL, "%s", err.msg);
     sg_cal_instrument_release(&ins);
 }
@@ -338,7 +338,7 @@ Test(calib, blank_line_over_observed_range)
     limit(&ev, "blank_residual", 0.25);
     ev_push(&ins, &ev);
     struct sg_cal_result r;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_BLANK, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_BLANK, (double)NAN, &r, NULL), SG_OK);
     cr_assert_float_eq(r.line.c0, 6.55, 1e-12);
     cr_assert_float_eq(r.line.c1, -0.2125, 1e-12);
     cr_assert_float_eq(r.xmin, 16.0, 0.0);
@@ -347,7 +347,7 @@ Test(calib, blank_line_over_observed_range)
     cr_assert_float_eq(r.worst, 0.2, 1e-12);
     cr_assert(r.accepted);
     ins.events[0].limits[0].value = 0.19;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_BLANK, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_BLANK, (double)NAN, &r, NULL), SG_OK);
     cr_assert(!r.accepted);
     sg_cal_instrument_release(&ins);
 }
@@ -379,7 +379,7 @@ Test(calib, scale_verification_errors_and_decision)
     limit(&ev, "scale_error_max", 0.5);
     ev_push(&ins, &ev);
     struct sg_cal_result r;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_SCALE, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_SCALE, (double)NAN, &r, NULL), SG_OK);
     cr_assert_float_eq(r.x[0], -1.79, 1e-9);
     cr_assert_float_eq(r.residual[0], -0.21, 1e-9);
     cr_assert_float_eq(r.residual[1], 0.15, 1e-9);
@@ -387,16 +387,16 @@ Test(calib, scale_verification_errors_and_decision)
     cr_assert_float_eq(r.worst, 0.21, 1e-9);
     cr_assert(r.accepted);
     ins.events[0].limits[0].value = 0.2;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_SCALE, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_SCALE, (double)NAN, &r, NULL), SG_OK);
     cr_assert(!r.accepted);
     /* fewer than three points */
     ins.events[0].n_obs = 2;
     struct sg_error err;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_SCALE, NAN, &r, &err), SG_EINVAL);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_SCALE, (double)NAN, &r, &err), SG_EINVAL);
     /* a liquid on a hydrometer with no scale */
     ins.events[0].n_obs = 3;
     ins.scale = SG_SCALE_NONE;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_SCALE, NAN, &r, &err), SG_EINVAL);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_SCALE, (double)NAN, &r, &err), SG_EINVAL);
     cr_assert_eq(err.line, 20);
     sg_cal_instrument_release(&ins);
 }
@@ -417,14 +417,14 @@ Test(calib, cylinder_area_from_graduations)
     limit(&ev, "graduation_residual_mm", 0.5);
     ev_push(&ins, &ev);
     struct sg_cal_result r;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_AREA, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_AREA, (double)NAN, &r, NULL), SG_OK);
     cr_assert_float_eq(r.value, 1000.0 / 0.36, 1e-6);
     cr_assert_float_eq(r.u, 0.0, 1e-6);
     cr_assert(r.accepted);
     /* heights falling with volume: refused */
     ins.events[0].obs[2].y = 10.0;
     struct sg_error err;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_AREA, NAN, &r, &err), SG_EINVAL);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_AREA, (double)NAN, &r, &err), SG_EINVAL);
     sg_cal_instrument_release(&ins);
 }
 
@@ -466,7 +466,7 @@ Test(calib, pipette_volume_and_class_a_acceptance)
     struct sg_cal_instrument ins;
     pipette(&ins, m, 3);
     struct sg_cal_result r;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, (double)NAN, &r, NULL), SG_OK);
     cr_assert_float_eq(r.value, 9.9996, 1e-4); /* METHODS.md 13.8 #73 */
     cr_assert_float_eq(r.sd, 0.0, 1e-12);
     cr_assert_float_eq(r.z_ml_g, 1.002852, 1e-6);
@@ -475,7 +475,7 @@ Test(calib, pipette_volume_and_class_a_acceptance)
     /* 9.9450 g -> 9.9733 mL: 0.027 mL short, outside Class A (+-0.020) (hand, Z(20) above). */
     const double m2[] = {9.9450, 9.9440, 9.9460};
     pipette(&ins, m2, 3);
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, (double)NAN, &r, NULL), SG_OK);
     cr_assert_float_eq(r.value, 9.9450 * 1.002852, 1e-5);
     cr_assert_float_eq(r.sd, 0.001 * 1.002852, 1e-6);
     cr_assert_float_eq(r.u, 0.001 * 1.002852 / sqrt(3.0), 1e-6);
@@ -490,15 +490,15 @@ Test(calib, pipette_errors)
     struct sg_cal_result r;
     struct sg_error err;
     pipette(&ins, m, 2);
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, NAN, &r, &err), SG_EINVAL);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, (double)NAN, &r, &err), SG_EINVAL);
     cr_assert(strstr(err.msg, "'delivery'") != NULL, "%s", err.msg);
     obs(&ins.events[0], SG_CAL_OBS_DELIVERY, 9.9712, 0.0);
-    ins.events[0].water_temp_c = NAN;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, NAN, &r, &err), SG_EINVAL);
+    ins.events[0].water_temp_c = (double)NAN;
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, (double)NAN, &r, &err), SG_EINVAL);
     cr_assert(strstr(err.msg, "water_temp_c") != NULL, "%s", err.msg);
     ins.events[0].water_temp_c = 20.0;
     ins.has_nominal = false;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, NAN, &r, &err), SG_EINVAL);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_VOLUME, (double)NAN, &r, &err), SG_EINVAL);
     cr_assert(strstr(err.msg, "nominal_ml") != NULL, "%s", err.msg);
     sg_cal_instrument_release(&ins);
 }
@@ -522,16 +522,16 @@ Test(calib, thermometer_ice_point_correction)
     limit(&ev, "residual_max_c", 0.03);
     ev_push(&ins, &ev);
     struct sg_cal_result r;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_OFFSET, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_OFFSET, (double)NAN, &r, NULL), SG_OK);
     cr_assert_float_eq(r.value, -0.1175, 1e-12);
     cr_assert_float_eq(r.residual[1], -0.0325, 1e-12);
     cr_assert(!r.accepted, "max residual 0.0325 > 0.03: %s", r.decision);
     ins.events[0].limits[1].value = 0.05;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_OFFSET, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_OFFSET, (double)NAN, &r, NULL), SG_OK);
     cr_assert(r.accepted, "%s", r.decision);
     /* single ice point: correction = -observed exactly; u from the division alone (0.1/sqrt(12)). */
     ins.events[0].n_obs = 1;
-    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_OFFSET, NAN, &r, NULL), SG_OK);
+    cr_assert_eq(sg_cal_evaluate(&ins, &ins.events[0], SG_CAL_PART_OFFSET, (double)NAN, &r, NULL), SG_OK);
     cr_assert_float_eq(r.value, -0.10, 1e-12);
     cr_assert_float_eq(r.u, 0.1 / sqrt(12.0), 1e-12);
     sg_cal_instrument_release(&ins);

@@ -261,10 +261,10 @@ static double area_for(const char *register_dir, const struct sg_cal_event *ev, 
     }
     struct sg_cal_instrument cyl;
     struct sg_error err;
-    double a = NAN;
+    double a = (double)NAN;
     if (ev->cylinder[0] == '\0') {
         (void)snprintf(label, size, "no cylinder named");
-        return NAN;
+        return (double)NAN;
     }
     if (sg_calibio_load(register_dir, ev->cylinder, &cyl, &err) != SG_OK) {
         (void)snprintf(label, size, "cylinder %s: %.200s", ev->cylinder, err.msg);
@@ -273,7 +273,7 @@ static double area_for(const char *register_dir, const struct sg_cal_event *ev, 
         if (sg_cal_status(&cyl, d, 0, &st, &err) == SG_OK && st.entry[SG_CAL_PART_AREA] >= 0) {
             struct sg_cal_result *res = malloc(sizeof *res);
             if (res != NULL &&
-                sg_cal_evaluate(&cyl, &cyl.events[st.entry[SG_CAL_PART_AREA]], SG_CAL_PART_AREA, NAN, res, &err) ==
+                sg_cal_evaluate(&cyl, &cyl.events[st.entry[SG_CAL_PART_AREA]], SG_CAL_PART_AREA, (double)NAN, res, &err) ==
                     SG_OK) {
                 char entry[96];
                 sg_cal_entry_label(&cyl, (size_t)st.entry[SG_CAL_PART_AREA], entry, sizeof entry);
@@ -307,7 +307,7 @@ static bool print_event_parts(const struct sg_cal_instrument *ins, size_t i, con
     for (unsigned p = 0; p < SG_CAL_PART_COUNT; p++) {
         if (!(parts & (1u << p)))
             continue;
-        double area = NAN;
+        double area = (double)NAN;
         char why[300] = "";
         if (p == SG_CAL_PART_DEPTH)
             area = area_for(o->register_dir, ev, d, o->has_area, o->area_mm2, why, sizeof why);
@@ -343,7 +343,7 @@ static const char *event_decision(const struct sg_cal_instrument *ins, const str
         struct sg_error err;
         if (!(parts & (1u << p)))
             continue;
-        if (sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, NAN, res, &err) != SG_OK)
+        if (sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, (double)NAN, res, &err) != SG_OK)
             d = "error";
         else if (!res->accepted)
             d = "rejected";

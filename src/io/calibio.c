@@ -1324,7 +1324,7 @@ static enum sg_status resolve_one(struct resolver *rv, const char *id, struct sg
         for (unsigned p = 0; p < SG_CAL_PART_COUNT; p++)
             if (parts & (1u << p)) {
                 struct sg_cal_result res;
-                if ((st = sg_cal_evaluate(ins, &ins->events[idx], (enum sg_cal_part)p, NAN, &res, &e)) != SG_OK)
+                if ((st = sg_cal_evaluate(ins, &ins->events[idx], (enum sg_cal_part)p, (double)NAN, &res, &e)) != SG_OK)
                     return sg_error_set(rv->err, st, line, col, "instrument '%s': %.300s", id, e.msg);
                 if (!res.accepted)
                     return sg_error_set(rv->err, SG_EINVAL, line, col,
@@ -1374,7 +1374,7 @@ static enum sg_status resolve_cylinder(struct resolver *rv, const char *id, stru
     enum sg_status st = resolve_one(rv, id, pos, SG_CAL_CYLINDER, "cylinder", &ins, &stat);
     if (st == SG_OK) {
         struct sg_cal_result res;
-        st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_AREA, NAN, pos, &res);
+        st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_AREA, (double)NAN, pos, &res);
         if (st == SG_OK)
             *area_mm2 = res.value;
     }
@@ -1411,7 +1411,7 @@ static enum sg_status resolve_hydrometer(struct resolver *rv)
     const struct sg_cal_event *dev = &ins.events[stat.entry[SG_CAL_PART_DEPTH]];
     const char *cyl = rec->cylinder[0] ? rec->cylinder : dev->cylinder;
     const struct sg_srcpos cpos = rec->cylinder[0] ? rec->pos_cylinder : pos;
-    double area = NAN;
+    double area = (double)NAN;
     /* The hydrometer's entries are named before its cylinder's. */
     add_used(rv, &ins, stat.entry[SG_CAL_PART_DEPTH]);
     add_used(rv, &ins, stat.entry[SG_CAL_PART_MENISCUS]);
@@ -1431,12 +1431,12 @@ static enum sg_status resolve_hydrometer(struct resolver *rv)
         add_note(k, "depth_cylinder_differs", SG_SEVERITY_INFO,
                  "hydrometer '%s' was calibrated in cylinder '%s'; its depth line uses the cross-section of '%s'",
                  ins.id, dev->cylinder, cyl);
-    if ((st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_MENISCUS, NAN, pos, &res)) != SG_OK)
+    if ((st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_MENISCUS, (double)NAN, pos, &res)) != SG_OK)
         goto cleanup;
     k->meniscus_correction = res.value;
     k->meniscus_u = res.u;
     if (stat.entry[SG_CAL_PART_BLANK] >= 0) {
-        if ((st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_BLANK, NAN, pos, &res)) != SG_OK)
+        if ((st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_BLANK, (double)NAN, pos, &res)) != SG_OK)
             goto cleanup;
         k->has_blank_line = true;
         k->blank_c0 = res.line.c0;
@@ -1463,7 +1463,7 @@ static enum sg_status resolve_simple(struct resolver *rv, const char *id, struct
     struct sg_cal_status stat;
     enum sg_status st = resolve_one(rv, id, pos, kind, role, &ins, &stat);
     if (st == SG_OK)
-        st = eval_in_force(rv, &ins, &stat, part, NAN, pos, res);
+        st = eval_in_force(rv, &ins, &stat, part, (double)NAN, pos, res);
     sg_cal_instrument_release(&ins);
     return st;
 }
@@ -1500,7 +1500,7 @@ enum sg_status sg_calibio_resolve_with(const char *register_dir, const struct sg
     if (rec->hydrometer[0])
         st = resolve_hydrometer(&rv);
     else if (rec->cylinder[0]) {
-        double area = NAN;
+        double area = (double)NAN;
         st = resolve_cylinder(&rv, rec->cylinder, rec->pos_cylinder, &area);
     }
     if (st == SG_OK && rec->thermometer[0]) {
