@@ -824,6 +824,11 @@ enum sg_status sg_cal_validate(const struct sg_cal_instrument *ins, struct sg_er
     if (ins->kind == SG_CAL_PIPETTE && !ins->has_nominal)
         return sg_error_set(err, SG_EINVAL, ins->pos_kind.line, 1,
                             "pipette '%s' names no nominal volume (add 'nominal_ml,<mL>')", ins->id);
+    return sg_cal_validate_history(ins, err);
+}
+
+enum sg_status sg_cal_validate_history(const struct sg_cal_instrument *ins, struct sg_error *err)
+{
     for (size_t i = 0; i < ins->n_events; i++) {
         const struct sg_cal_event *ev = &ins->events[i];
         if (i > 0) {

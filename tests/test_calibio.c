@@ -307,6 +307,22 @@ Test(calibio, parse_modes)
                  SG_OK, "%s", err.msg);
     cr_assert_eq(ins.kind, SG_CAL_THERMOMETER);
     sg_cal_instrument_release(&ins);
+    /* standalone: a hydrometer's depth needs no scale, a liquid's reference does */
+    const char depth[] = "event,2026-01-01,calibration\nby,a\nmethod,m\ncylinder,CY\nbulb_volume_ml,67\n"
+                         "bulb_length_mm,140\nneck_mm,0,105\nneck_mm,25,64\nneck_mm,50,23\nmeniscus,0,1\n"
+                         "limit,depth_residual_mm,0.5\nlimit,meniscus_spread,1\ndue,2027-01-01\n";
+    cr_assert_eq(parse(depth, SG_CALIBIO_STANDALONE, &ins, &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(ins.kind, SG_CAL_HYDROMETER);
+    sg_cal_instrument_release(&ins);
+    cr_assert_eq(parse(depth, SG_CALIBIO_REGISTER, &ins, &err), SG_EINVAL);
+    sg_cal_instrument_release(&ins);
+    const char liquid[] = "event,2026-01-01,verification\nby,a\nmethod,m\nscale_liquid,1.000,0\n"
+                          "scale_liquid,1.010,10\nscale_liquid,1.020,20\nlimit,scale_error_max,0.5\n"
+                          "due,2027-01-01\n";
+    cr_assert_eq(parse(liquid, SG_CALIBIO_STANDALONE, &ins, &err), SG_EINVAL);
+    cr_assert_eq(err.line, 4);
+    cr_assert(strstr(err.msg, "scale,") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
 }
 
 Test(calibio, demo_register_loads_whole)

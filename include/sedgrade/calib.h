@@ -288,6 +288,12 @@ enum sg_status sg_cal_evaluate(const struct sg_cal_instrument *ins, const struct
  * the first problem. */
 enum sg_status sg_cal_validate(const struct sg_cal_instrument *ins, struct sg_error *err);
 
+/* The history part of sg_cal_validate alone (no identity requirements), for
+ * standalone observation files: a part that needs an identity value (a
+ * liquid's reference reading needs the scale, a volume decision the nominal
+ * volume) still fails in sg_cal_evaluate with its own message. */
+enum sg_status sg_cal_validate_history(const struct sg_cal_instrument *ins, struct sg_error *err);
+
 /* Status of the instrument on date `on` (doc/register.md "Status"): the
  * entry in force for each part is the latest calibration or verification on
  * or before the date that carries that part and follows the last

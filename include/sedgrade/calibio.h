@@ -22,7 +22,8 @@
 enum sg_calibio_mode {
     SG_CALIBIO_REGISTER,  /* a register file: "instrument" row first, identity, then events; validated */
     SG_CALIBIO_EVENTS,    /* events only (the file given to 'cal add'); checked row by row, not as a whole */
-    SG_CALIBIO_STANDALONE /* identity rows optional (the kind is taken from the observations); validated */
+    SG_CALIBIO_STANDALONE /* identity rows optional (the kind is taken from the observations); the history
+                             is validated (sg_cal_validate_history) */
 };
 
 /* Parses register text (len bytes, need not be NUL-terminated) into ins

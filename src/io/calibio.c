@@ -784,7 +784,7 @@ static enum sg_status parse_rows(const char *text, size_t len, enum sg_calibio_m
             if (ins->id[0] == '\0')
                 (void)snprintf(ins->id, sizeof ins->id, "standalone");
             infer_kind(ins);
-            st = sg_cal_validate(ins, err);
+            st = sg_cal_validate_history(ins, err);
             break;
         case SG_CALIBIO_REGISTER:
             st = sg_cal_validate(ins, err);
