@@ -13,8 +13,8 @@
  *                                 sg_reduce; QC names it)
  *  concentration        warning   first reading > 50 g/L (concentration_max_g_l)   METHODS.md 2.6, 3.7 #7 (D422/D7928,
  *                                                                                 from memory)
- *  not_falling          failure   percent finer of a reading above that of an      METHODS.md 3.7 #3 (derived);
- *                                 earlier reading by > 1.0 point                    tolerance common practice
+ *  not_falling          failure   percent of specimen of a reading above the       METHODS.md 3.7 #3 (derived);
+ *                                 lowest of the earlier readings by > 1.0 point     tolerance common practice
  *                                 (monotone_tolerance_pct)
  *  temperature_range    warning   T < 15 C or T > 30 C (temp_min_c, temp_max_c)    common practice (D422 Table 3 K
  *                                                                                 covers 16-30 C, METHODS.md 2.2)
@@ -25,8 +25,9 @@
  *  over_100             failure   percent finer (of the sample or of the specimen)  METHODS.md 3.7 #4 (derived);
  *                                 > 100 + 1.0 (percent_tolerance)                   tolerance common practice
  *  negative             failure   percent finer < -1.0 (percent_tolerance)          derived; tolerance common practice
- *  non_monotone         failure   a curve point finer than another but with a      METHODS.md 6.3 #1 (practice)
- *                                 percent finer higher by > 1.0 point
+ *  non_monotone         failure   a curve point whose percent finer (of the sample) METHODS.md 6.3 #1 (practice)
+ *                                 is above the lowest of the coarser points' by
+ *                                 > 1.0 point (equal diameters not compared)
  *                                 (monotone_tolerance_pct)
  *  junction_gap         warning   |summary junction_gap_pct| > 5 points             METHODS.md 6.3 #2 (practice)
  *                                 (junction_gap_max_pct)
@@ -37,10 +38,14 @@
  *  calibration_overdue  (register) added by the calibration register code          METHODS.md 10.8
  *  curve                warning   too few points for a curve (added by sg_reduce)
  *
- * Elapsed times that do not rise are refused by sg_record_validate() before
- * any reduction, so they have no QC rule. Each rule adds at most one named
- * flag (struct sg_flag) per run, located at the first line concerned and
- * listing the others; the per-point bits below mark every point concerned.
+ * Other modules add flags of their own before QC runs (the register's notes,
+ * sg_reduce's and classify's findings); qc_status and qc_flags count them too.
+ *
+ * A value equal to its threshold is never flagged. Elapsed times that do not
+ * rise are refused by sg_record_validate() before any reduction, so they have
+ * no QC rule. Each rule adds at most one named flag (struct sg_flag) per run,
+ * located at the worst line concerned (the first, for coarser_than_sieve) and
+ * listing the lines; the per-point bits below mark every point concerned.
  * sg_qc_evaluate() also adds the summary quantities "sieve_loss_pct" (not
  * determined without a pan), "qc_status" (ok / warning / failed) and
  * "qc_flags" (the names of all flags of the run, '|' separated). */
