@@ -16,6 +16,7 @@
 #include <unistd.h>
 
 #include "cli/cli.h"
+#include "cli/progress.h"
 #include "sedgrade/atomic.h"
 #include "sedgrade/calibio.h"
 #include "sedgrade/csvout.h"
@@ -103,6 +104,7 @@ struct batch {
     struct schema_table schemas;
     struct id_set ids;
     pthread_mutex_t stderr_lock;
+    struct sg_progress progress; /* under stderr_lock */
     /* One anonymous temporary file per worker (in the output folder, unlinked
      * at once) holds the summary values of its tests until the batch summary
      * is written, so memory stays flat however large the archive. */
@@ -462,6 +464,7 @@ static enum sg_status write_outputs(const struct reduce_cfg *cfg, const struct s
 static void report_locked(struct batch *b, const char *file, const struct sg_error *err)
 {
     pthread_mutex_lock(&b->stderr_lock);
+    sg_progress_clear(&b->progress);
     sg_cli_report(file, err);
     pthread_mutex_unlock(&b->stderr_lock);
 }
@@ -582,6 +585,7 @@ static void run_job(struct batch *b, struct worker_state *w, struct job *job, st
                                                  : JOB_OK;
     if (!cfg->quiet && worst >= SG_SEVERITY_WARNING) {
         pthread_mutex_lock(&b->stderr_lock);
+        sg_progress_clear(&b->progress);
         for (size_t i = 0; i < res->n_flags; i++) {
             const struct sg_flag *f = &res->flags[i];
             if (f->severity < SG_SEVERITY_WARNING)
@@ -615,6 +619,9 @@ static void *worker(void *arg)
         if (i >= b->n_jobs)
             break;
         run_job(b, &w, &b->jobs[i], &rec, &res);
+        pthread_mutex_lock(&b->stderr_lock);
+        sg_progress_step(&b->progress);
+        pthread_mutex_unlock(&b->stderr_lock);
     }
     sg_result_release(&res);
     sg_record_release(&rec);
@@ -987,6 +994,7 @@ int sg_cli_reduce(int argc, char **argv)
     pthread_mutex_init(&b.schemas.lock, NULL);
     pthread_mutex_init(&b.ids.lock, NULL);
     pthread_mutex_init(&b.stderr_lock, NULL);
+    sg_progress_init(&b.progress, b.n_jobs, "reduced");
 
     size_t n_threads = cfg.jobs < files.n ? cfg.jobs : files.n;
     pthread_t *threads = calloc(n_threads, sizeof *threads);
@@ -998,6 +1006,7 @@ int sg_cli_reduce(int argc, char **argv)
     for (size_t i = 0; i < started; i++)
         pthread_join(threads[i], NULL);
     free(threads);
+    sg_progress_finish(&b.progress);
 
     size_t n_ok = 0, n_flagged = 0, n_failed_qc = 0, n_refused = 0, n_io = 0;
     for (size_t i = 0; i < b.n_jobs; i++) {
