@@ -460,3 +460,23 @@ Test(plot, calibration_fit_chart_rejects_bad_data)
     cr_assert_eq(sg_plot_fit_write(&f, SG_PLOT_PNG, p, &e), SG_OK, "%s", e.msg);
     cr_assert_eq(entries(dir), 1);
 }
+
+Test(plot, calibration_chart_line_caption)
+{
+    if (!have("pdftotext"))
+        cr_skip_test("poppler-utils not installed");
+    /* meniscus corrections (bottom - top) of three observations, charted against their mean */
+    const double top[] = {0.0, -0.5, 0.0};
+    const double corr[] = {1.0, 1.5, 1.0};
+    struct sg_plot_fit f = {.title = "meniscus", .x_label = "reading at the top", .y_label = "correction",
+                            .xs = top, .ys = corr, .n = 3, .c0 = 7.0 / 6.0, .c1 = 0.0, .residuals = true,
+                            .line_label = "mean = 1.1667"};
+    char p[128], cmd[256];
+    path_in(p, sizeof p, "m.pdf");
+    cr_assert_eq(sg_plot_fit_write(&f, SG_PLOT_PDF, p, NULL), SG_OK);
+    (void)snprintf(cmd, sizeof cmd, "pdftotext '%s' -", p);
+    char *text = run(cmd);
+    cr_assert(strstr(text, "mean = 1.1667") != NULL, "%s", text);
+    cr_assert(strstr(text, "fit: y") == NULL, "%s", text);
+    free(text);
+}

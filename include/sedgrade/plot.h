@@ -106,6 +106,7 @@ struct sg_plot_fit {
     size_t n;
     double c0, c1;              /* the fitted line */
     bool residuals;             /* draw a residual panel (y - fit) under the fit */
+    const char *line_label;     /* caption of the line; NULL: "fit: y = c0 + c1 x (n = ...)" */
     const char *create_date;    /* PDF creation date "YYYY-MM-DD" (the calibration date); NULL: 2000-01-01 */
 };
 

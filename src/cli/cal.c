@@ -9,6 +9,7 @@
 #include <sys/stat.h>
 #include <time.h>
 
+#include "cli/calplot.h"
 #include "cli/cli.h"
 #include "sedgrade/calib.h"
 #include "sedgrade/calibio.h"
@@ -50,11 +51,13 @@ static const char cal_help[] =
     "\n"
     "options:\n"
     "      --register DIR        the register folder (default ./calibration)\n"
+    "      --plot FORMAT         (show, fit) also chart each part: svg, png or pdf, written\n"
+    "                            to the current folder as ID_DATE.PART.FORMAT\n"
     "  -h, --help                this help\n"
     "\n"
     "exit status: 0 ok; 2 bad input or usage; 3 I/O failure.\n";
 
-enum { OPT_REGISTER = 256, OPT_DATE, OPT_WITHIN, OPT_CSV, OPT_EVENT, OPT_FOLDER, OPT_FROM, OPT_TO, OPT_AREA };
+enum { OPT_REGISTER = 256, OPT_DATE, OPT_WITHIN, OPT_CSV, OPT_EVENT, OPT_FOLDER, OPT_FROM, OPT_TO, OPT_AREA, OPT_PLOT };
 
 struct cal_opts {
     const char *register_dir;
@@ -66,6 +69,8 @@ struct cal_opts {
     size_t within_days;
     bool has_area;
     double area_mm2;
+    bool has_plot;
+    enum sg_plot_format plot_fmt;
     const char *args[2];
     size_t n_args;
 };
@@ -106,6 +111,7 @@ static int parse_opts(int argc, char **argv, struct cal_opts *o)
         {"event", required_argument, NULL, OPT_EVENT},       {"folder", required_argument, NULL, OPT_FOLDER},
         {"from", required_argument, NULL, OPT_FROM},         {"to", required_argument, NULL, OPT_TO},
         {"area-mm2", required_argument, NULL, OPT_AREA},     {"help", no_argument, NULL, 'h'},
+        {"plot", required_argument, NULL, OPT_PLOT},
         {NULL, 0, NULL, 0}};
     memset(o, 0, sizeof *o);
     o->register_dir = CAL_DEFAULT_REGISTER;
@@ -131,6 +137,15 @@ static int parse_opts(int argc, char **argv, struct cal_opts *o)
                 return SG_EXIT_INPUT;
             o->has_area = true;
             break;
+        case OPT_PLOT: {
+            struct sg_error perr;
+            if (sg_plot_format_parse(optarg, &o->plot_fmt, &perr) != SG_OK) {
+                sg_cli_errorf("option --plot: %s", perr.msg);
+                return SG_EXIT_INPUT;
+            }
+            o->has_plot = true;
+            break;
+        }
         case 'h': fputs(cal_help, stdout); return -1;
         case ':':
             sg_cli_errorf("option %s needs a value (see 'sedgrade cal --help')", argv[optind - 1]);
@@ -323,6 +338,8 @@ static bool print_event_parts(const struct sg_cal_instrument *ins, size_t i, con
         printf("%s: %s (%s, due %s)%s%s%s\n", sg_cal_part_name((enum sg_cal_part)p), label,
                sg_cal_event_type_name(ev->type), due, why[0] ? " [" : "", why, why[0] ? "]" : "");
         print_result(ins, res);
+        if (o->has_plot && !sg_cli_cal_plot(ins, i, res, o->plot_fmt, "."))
+            ok = false;
     }
     free(res);
     return ok;

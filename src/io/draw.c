@@ -1028,6 +1028,11 @@ void sg_draw_fit_chart(cairo_t *cr, double x, double y, double w, double h, cons
     cairo_move_to(cr, sg_axis_lin_map(&a.xa, xlo), sg_axis_lin_map(&a.ya, f0));
     cairo_line_to(cr, sg_axis_lin_map(&a.xa, xhi), sg_axis_lin_map(&a.ya, f1));
     cairo_stroke(cr);
+    cairo_restore(cr);
+    /* markers may overhang the frame by half their size */
+    cairo_save(cr);
+    cairo_rectangle(cr, a.left - 4.0, a.top - 4.0, a.right - a.left + 8.0, a.bottom - a.top + 8.0);
+    cairo_clip(cr);
     for (size_t i = 0; i < fit->n; i++)
         sg_draw_marker(cr, SG_MARK_CIRCLE, sg_axis_lin_map(&a.xa, fit->xs[i]), sg_axis_lin_map(&a.ya, fit->ys[i]),
                        5.2, false, CURVE);
@@ -1036,8 +1041,11 @@ void sg_draw_fit_chart(cairo_t *cr, double x, double y, double w, double h, cons
     char c0[40], c1[40], eq[128];
     sg_axis_format_sig(fit->c0, 5, c0, sizeof c0);
     sg_axis_format_sig(fabs(fit->c1), 5, c1, sizeof c1);
-    (void)snprintf(eq, sizeof eq, "fit: y = %s %s %s x   (n = %zu)", c0, fit->c1 < 0.0 ? "\xe2\x88\x92" : "+", c1,
-                   fit->n);
+    if (fit->line_label != NULL)
+        (void)snprintf(eq, sizeof eq, "%s   (n = %zu)", fit->line_label, fit->n);
+    else
+        (void)snprintf(eq, sizeof eq, "fit: y = %s %s %s x   (n = %zu)", c0, fit->c1 < 0.0 ? "\xe2\x88\x92" : "+",
+                       c1, fit->n);
     sg_draw_font(cr, 8.0, false);
     /* the equation goes in the corner the line leaves free */
     const bool rising = fit->c1 >= 0.0;
@@ -1053,7 +1061,7 @@ void sg_draw_fit_chart(cairo_t *cr, double x, double y, double w, double h, cons
         r.ya = (struct sg_axis_lin){rlo, rhi, r.bottom, r.top};
         lin_panel(cr, &r, fit->residual_label ? fit->residual_label : "residual", true, fit->x_label);
         cairo_save(cr);
-        cairo_rectangle(cr, r.left, r.top, r.right - r.left, r.bottom - r.top);
+        cairo_rectangle(cr, r.left - 4.0, r.top - 4.0, r.right - r.left + 8.0, r.bottom - r.top + 8.0);
         cairo_clip(cr);
         sg_draw_rgb(cr, SEDIMENT);
         cairo_set_line_width(cr, 1.0);
