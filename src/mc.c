@@ -115,33 +115,40 @@ void sg_mc_detail_release(struct sg_mc_detail *d)
 
 /* ---- accumulators -------------------------------------------------------- */
 
-/* Count, mean and sum of squared deviations (Welford; blocks combined by
- * Chan et al.'s pairwise rule, always in block order). */
+/* Count and the sums of the deviations d = x - shift and of d^2, shift
+ * being the nominal value: sums of small deviations keep their precision
+ * (no cancellation unless the mean is many standard deviations from the
+ * nominal) and blocks combine by plain addition, always in block order. */
 struct moments {
-    double n, mean, m2;
+    double n, s1, s2;
 };
 
-static void moments_add(struct moments *m, double x)
+static void moments_add(struct moments *m, double d)
 {
     m->n += 1.0;
-    const double d = x - m->mean;
-    m->mean += d / m->n;
-    m->m2 += d * (x - m->mean);
+    m->s1 += d;
+    m->s2 += d * d;
 }
 
 static void moments_merge(struct moments *a, const struct moments *b)
 {
-    if (b->n == 0.0)
-        return;
-    if (a->n == 0.0) {
-        *a = *b;
-        return;
-    }
-    const double n = a->n + b->n;
-    const double d = b->mean - a->mean;
-    a->mean += d * b->n / n;
-    a->m2 += b->m2 + d * d * a->n * b->n / n;
-    a->n = n;
+    a->n += b->n;
+    a->s1 += b->s1;
+    a->s2 += b->s2;
+}
+
+static double moments_mean(const struct moments *m, double shift)
+{
+    return m->n > 0.0 ? shift + m->s1 / m->n : NO_VALUE;
+}
+
+/* Standard deviation with the M - 1 divisor (JCGM 101 7.6). */
+static double moments_sd(const struct moments *m)
+{
+    if (m->n < 2.0)
+        return NO_VALUE;
+    const double ss = m->s2 - m->s1 * m->s1 / m->n;
+    return ss > 0.0 ? sqrt(ss / (m->n - 1.0)) : 0.0;
 }
 
 /* A superset of the k smallest values seen: the lower tail needed for the
@@ -230,7 +237,10 @@ static void cat_add(struct cat_table *t, const char *text, size_t count)
 
 /* ---- the run ------------------------------------------------------------- */
 
-enum qkind { Q_SKIP = 0, Q_NUMERIC, Q_CATEGORICAL };
+/* How a nominal quantity is followed through the draws: numeric (u and
+ * interval), categorical (class counts), or not determined in the nominal
+ * result (only how often, and as what, the draws determine it). */
+enum qkind { Q_SKIP = 0, Q_NUMERIC, Q_CATEGORICAL, Q_UNDET };
 
 struct plan {
     const struct sg_record *rec;
@@ -247,9 +257,13 @@ struct plan {
     size_t n_quant;
     char (*names)[SG_QNAME_MAX];
     enum qkind *kind;
-    size_t *slot;      /* numeric slot or categorical table index */
+    size_t *slot;       /* value slot (Q_NUMERIC, Q_UNDET) */
+    size_t *cat;        /* class table (Q_CATEGORICAL, Q_UNDET) */
     size_t *draw_index; /* where a draw's result is expected to hold quantity i */
-    size_t n_num, n_cat, n_pts, n_slots;
+    /* slots: n_num numeric (with tails), n_und undetermined, then percent
+     * finer and diameter of each point */
+    size_t n_num, n_und, n_cat, n_pts, n_slots, pts0;
+    double *shift;      /* [n_slots] nominal value subtracted before summing */
 
     /* shared outputs */
     struct moments *block_stats; /* [n_blocks][n_slots] */
@@ -375,12 +389,24 @@ static void extract(const struct plan *p, const struct sg_result *rs, double *ro
         if (p->kind[i] == Q_SKIP)
             continue;
         const struct sg_quantity *q = match(p, rs, i);
-        if (p->kind[i] == Q_NUMERIC)
-            row[p->slot[i]] = (q != NULL && q->determined && !q->is_text && isfinite(q->value)) ? q->value : NO_VALUE;
-        else
-            cat_add(&cats[p->slot[i]], (q != NULL && q->determined) ? q->text : "", 1);
+        const bool det = q != NULL && q->determined;
+        switch (p->kind[i]) {
+        case Q_NUMERIC:
+            row[p->slot[i]] = (det && !q->is_text && isfinite(q->value)) ? q->value : NO_VALUE;
+            break;
+        case Q_CATEGORICAL:
+            cat_add(&cats[p->cat[i]], det ? q->text : "", 1);
+            break;
+        case Q_UNDET:
+            row[p->slot[i]] = !det ? NO_VALUE : q->is_text ? 0.0 : q->value;
+            if (det && q->is_text)
+                cat_add(&cats[p->cat[i]], q->text, 1);
+            break;
+        case Q_SKIP:
+            break;
+        }
     }
-    double *pts = row + p->n_num;
+    double *pts = row + p->pts0;
     const bool same = rs->n_points == p->n_pts;
     for (size_t i = 0; i < p->n_pts; i++) {
         pts[2 * i] = same ? rs->points[i].percent_finer : NO_VALUE;
@@ -428,10 +454,11 @@ static void *work(void *arg)
         struct moments *bs = p->block_stats + blk * p->n_slots;
         for (size_t s = 0; s < p->n_slots; s++) {
             struct moments m = {0.0, 0.0, 0.0};
+            const double shift = p->shift[s];
             for (size_t j = 0; j < nd; j++) {
                 const double x = vals[j * p->n_slots + s];
                 if (isfinite(x))
-                    moments_add(&m, x);
+                    moments_add(&m, x - shift);
             }
             bs[s] = m;
         }
@@ -529,6 +556,26 @@ static void slug(char *dst, size_t size, const char *text)
     dst[n] = '\0';
 }
 
+/* "Monte Carlo class probabilities: a 72.0 %, b 28.0 %" into buf. */
+static void class_note(const struct cat_table *t, size_t *idx, size_t ok_draws, const char *lead, char *buf,
+                       size_t size)
+{
+    order_classes(t, idx);
+    int w = snprintf(buf, size, "%s", lead);
+    size_t used = w > 0 ? (size_t)w : 0;
+    for (size_t j = 0; j < t->n && used < size; j++) {
+        char pct[24];
+        percent_text(pct, sizeof pct, 100.0 * (double)t->count[idx[j]] / (double)ok_draws);
+        w = snprintf(buf + used, size - used, "%s %s %s", j ? "," : "", class_label(t->text[idx[j]]), pct);
+        used += w > 0 ? (size_t)w : 0;
+    }
+    if (t->other > 0 && used < size) {
+        char pct[24];
+        percent_text(pct, sizeof pct, 100.0 * (double)t->other / (double)ok_draws);
+        (void)snprintf(buf + used, size - used, ", other %s", pct);
+    }
+}
+
 /* Writes the statistics into res. Returns SG_OK or SG_ENOMEM (adding rows). */
 static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, struct sg_result *res,
                               struct sg_mc_detail *detail, size_t failed, const char *first_failure,
@@ -560,19 +607,24 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
     for (size_t i = 0; i < n_quant; i++) {
         struct sg_quantity *q = &res->quantities[i];
         char buf[SG_QNOTE_MAX];
-        if (p->kind[i] == Q_NUMERIC) {
+        if (p->kind[i] == Q_UNDET) {
+            const size_t mq = (size_t)tot[p->slot[i]].n;
+            if (mq == 0)
+                continue;
+            char pct[24], lead[80];
+            percent_text(pct, sizeof pct, 100.0 * (double)mq / (double)ok_draws);
+            (void)snprintf(lead, sizeof lead, "Monte Carlo: determined in %s of draws", pct);
+            if (cats[p->cat[i]].n > 0) {
+                strcat(lead, " as");
+                class_note(&cats[p->cat[i]], idx, ok_draws, lead, buf, sizeof buf);
+            } else {
+                (void)snprintf(buf, sizeof buf, "%s", lead);
+            }
+            note_append(q, buf);
+        } else if (p->kind[i] == Q_NUMERIC) {
             const size_t s = p->slot[i];
             const struct moments *m = &tot[s];
             const size_t mq = (size_t)m->n;
-            if (!q->determined) {
-                if (mq > 0) {
-                    char pct[24];
-                    percent_text(pct, sizeof pct, 100.0 * (double)mq / (double)ok_draws);
-                    (void)snprintf(buf, sizeof buf, "Monte Carlo: determined in %s of draws", pct);
-                    note_append(q, buf);
-                }
-                continue;
-            }
             size_t r = 0, qq = 0;
             if (!sg_mc_coverage_indices(mq, SG_MC_COVERAGE, &r, &qq))
                 continue;
@@ -582,7 +634,7 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
             qsort(p->lo[s].v, p->lo[s].n, sizeof *p->lo[s].v, cmp_double);
             qsort(p->hi[s].v, p->hi[s].n, sizeof *p->hi[s].v, cmp_double);
             q->has_u = true;
-            q->u = sqrt(m->m2 / (m->n - 1.0));
+            q->u = moments_sd(m);
             q->low95 = p->lo[s].v[r - 1];
             q->high95 = -p->hi[s].v[sidx - 1];
             if (mq < ok_draws) {
@@ -593,21 +645,7 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
                 note_append(q, buf);
             }
         } else if (p->kind[i] == Q_CATEGORICAL) {
-            const struct cat_table *t = &cats[p->slot[i]];
-            order_classes(t, idx);
-            size_t used = (size_t)snprintf(buf, sizeof buf, "Monte Carlo class probabilities:");
-            for (size_t j = 0; j < t->n && used < sizeof buf; j++) {
-                char pct[24];
-                percent_text(pct, sizeof pct, 100.0 * (double)t->count[idx[j]] / (double)ok_draws);
-                const int w = snprintf(buf + used, sizeof buf - used, "%s %s %s", j ? "," : "",
-                                       class_label(t->text[idx[j]]), pct);
-                used += w > 0 ? (size_t)w : 0;
-            }
-            if (t->other > 0 && used < sizeof buf) {
-                char pct[24];
-                percent_text(pct, sizeof pct, 100.0 * (double)t->other / (double)ok_draws);
-                (void)snprintf(buf + used, sizeof buf - used, ", other %s", pct);
-            }
+            class_note(&cats[p->cat[i]], idx, ok_draws, "Monte Carlo class probabilities:", buf, sizeof buf);
             note_append(q, buf);
         }
     }
@@ -615,7 +653,7 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
     for (size_t i = 0; i < n_quant && st == SG_OK; i++) {
         if (p->kind[i] != Q_CATEGORICAL || !is_class_row_quantity(p->names[i]))
             continue;
-        const struct cat_table *t = &cats[p->slot[i]];
+        const struct cat_table *t = &cats[p->cat[i]];
         order_classes(t, idx);
         for (size_t j = 0; j < t->n && st == SG_OK; j++) {
             char name[SG_QNAME_MAX], s[SG_QNAME_MAX], note[SG_QNOTE_MAX];
@@ -629,8 +667,7 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
         }
     }
     for (size_t i = 0; i < p->n_pts; i++) {
-        const struct moments *m = &tot[p->n_num + 2 * i];
-        res->points[i].percent_finer_u = m->n >= 2.0 ? sqrt(m->m2 / (m->n - 1.0)) : NO_VALUE;
+        res->points[i].percent_finer_u = moments_sd(&tot[p->pts0 + 2 * i]);
     }
     if (st == SG_OK) {
         char note[SG_QNOTE_MAX];
@@ -663,13 +700,13 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
             (void)snprintf(detail->first_failure, sizeof detail->first_failure, "%s", first_failure);
             detail->n_points = p->n_pts;
             for (size_t i = 0; i < p->n_pts; i++) {
-                const struct moments *mp = &tot[p->n_num + 2 * i], *md = &tot[p->n_num + 2 * i + 1];
+                const size_t sp = p->pts0 + 2 * i, sd = sp + 1;
                 struct sg_mc_point_stats *o = &detail->points[i];
-                o->n = (size_t)mp->n;
-                o->percent_finer_mean = mp->n > 0.0 ? mp->mean : NO_VALUE;
-                o->percent_finer_u = mp->n >= 2.0 ? sqrt(mp->m2 / (mp->n - 1.0)) : NO_VALUE;
-                o->diameter_mean_mm = md->n > 0.0 ? md->mean : NO_VALUE;
-                o->diameter_u_mm = md->n >= 2.0 ? sqrt(md->m2 / (md->n - 1.0)) : NO_VALUE;
+                o->n = (size_t)tot[sp].n;
+                o->percent_finer_mean = moments_mean(&tot[sp], p->shift[sp]);
+                o->percent_finer_u = moments_sd(&tot[sp]);
+                o->diameter_mean_mm = moments_mean(&tot[sd], p->shift[sd]);
+                o->diameter_u_mm = moments_sd(&tot[sd]);
             }
         }
     }
@@ -686,6 +723,8 @@ static void plan_release(struct plan *p)
     free(p->names);
     free(p->kind);
     free(p->slot);
+    free(p->cat);
+    free(p->shift);
     free(p->draw_index);
     free(p->block_stats);
     if (p->lo != NULL)
@@ -762,8 +801,10 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
     p.names = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.names);
     p.kind = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.kind);
     p.slot = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.slot);
+    p.cat = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.cat);
     p.draw_index = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.draw_index);
-    if (ws == NULL || p.names == NULL || p.kind == NULL || p.slot == NULL || p.draw_index == NULL)
+    if (ws == NULL || p.names == NULL || p.kind == NULL || p.slot == NULL || p.cat == NULL ||
+        p.draw_index == NULL)
         goto nomem;
     /* the layout of a draw's (values-only) result: quantities it does not
      * compute (QC status, calibration_used) get no uncertainty */
@@ -774,14 +815,16 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
         const struct sg_quantity *q = &res->quantities[i];
         (void)snprintf(p.names[i], sizeof p.names[i], "%s", q->name);
         const struct sg_quantity *dq = sg_result_quantity(&layout, q->name);
-        if (dq == NULL || dq->is_text != q->is_text)
+        if (dq == NULL || strcmp(q->name, "calibration_used") == 0)
             continue;
         p.draw_index[i] = (size_t)(dq - layout.quantities);
-        if (q->is_text) {
-            if (strcmp(q->name, "calibration_used") == 0)
-                continue;
+        if (!q->determined) {
+            p.kind[i] = Q_UNDET;
+            p.cat[i] = p.n_cat++;
+            p.n_und++;
+        } else if (q->is_text) {
             p.kind[i] = Q_CATEGORICAL;
-            p.slot[i] = p.n_cat++;
+            p.cat[i] = p.n_cat++;
         } else {
             p.kind[i] = Q_NUMERIC;
             p.slot[i] = p.n_num++;
@@ -790,7 +833,22 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
     sg_result_release(&layout);
     if (st != SG_OK)
         goto cleanup;
-    p.n_slots = p.n_num + 2 * p.n_pts;
+    p.pts0 = p.n_num + p.n_und;
+    p.n_slots = p.pts0 + 2 * p.n_pts;
+    p.shift = calloc(p.n_slots ? p.n_slots : 1, sizeof *p.shift);
+    if (p.shift == NULL)
+        goto nomem;
+    for (size_t i = 0, u = p.n_num; i < p.n_quant; i++) {
+        if (p.kind[i] == Q_UNDET)
+            p.slot[i] = u++; /* counted only: shift 0 */
+        else if (p.kind[i] == Q_NUMERIC)
+            p.shift[p.slot[i]] = res->quantities[i].value;
+    }
+    for (size_t i = 0; i < p.n_pts; i++) {
+        const double pf = res->points[i].percent_finer, d = res->points[i].diameter_mm;
+        p.shift[p.pts0 + 2 * i] = isfinite(pf) ? pf : 0.0;
+        p.shift[p.pts0 + 2 * i + 1] = isfinite(d) ? d : 0.0;
+    }
     p.block_stats = calloc(p.n_blocks * (p.n_slots ? p.n_slots : 1), sizeof *p.block_stats);
     p.lo = calloc(p.n_num ? p.n_num : 1, sizeof *p.lo);
     p.hi = calloc(p.n_num ? p.n_num : 1, sizeof *p.hi);

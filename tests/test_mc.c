@@ -493,6 +493,26 @@ Test(run, not_determined_in_some_draws)
     sg_record_release(&rec);
 }
 
+Test(run, determined_only_in_some_draws)
+{
+    /* the finest point at 10.38 % finer: D10 is not determined nominally,
+     * but is in the draws where that point falls below 10 % */
+    struct sg_record rec;
+    base_record(&rec);
+    add_reading(&rec, 2.0, 30.0, 20.0, 10);
+    add_reading(&rec, 60.0, 15.0, 20.0, 11);
+    add_reading(&rec, 1440.0, 10.25, 20.0, 12); /* P = 100 a 5.25 / 50 = 10.38 % */
+    struct sg_result res;
+    reduce(&rec, &res);
+    cr_assert(!qty(&res, "d10_mm")->determined);
+    mc(&rec, &res, NULL, 4000, 3, 2);
+    const struct sg_quantity *d10 = qty(&res, "d10_mm");
+    cr_assert(!d10->has_u);
+    cr_assert(strstr(d10->note, "Monte Carlo: determined in ") != NULL, "%s", d10->note);
+    sg_result_release(&res);
+    sg_record_release(&rec);
+}
+
 Test(run, refused_draws_are_counted)
 {
     /* 39.7 C with u 0.5 C: draws above 40 C are refused (water properties
