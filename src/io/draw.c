@@ -700,8 +700,10 @@ static void chart_dvalues(const struct chart *c, const struct sg_result *res)
         hline(cr, c->left, x, y);
         vline(cr, x, y, c->bottom);
         cairo_set_dash(cr, NULL, 0, 0.0);
+        double right = x; /* right end of what is drawn at the point */
         if (q->has_u && placeable(q->low95) && placeable(q->high95)) {
             const double xa = cx(c, q->low95), xb = cx(c, q->high95);
+            right = fmax(right, fmax(xa, xb));
             cairo_set_line_width(cr, 1.0);
             hline(cr, xa, xb, y);
             vline(cr, xa, y - 3.0, y + 3.0);
@@ -721,7 +723,7 @@ static void chart_dvalues(const struct chart *c, const struct sg_result *res)
         if (room)
             backed_text(cr, c->left + 4.0, ty, 0.0, text);
         else
-            backed_text(cr, x + 4.0, ty, 0.0, text);
+            backed_text(cr, right + 4.0, ty, 0.0, text);
     }
 }
 
