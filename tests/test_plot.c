@@ -335,6 +335,7 @@ Test(plot, degenerate_results_still_draw)
     cr_assert_eq(sg_result_add_point(&r, &p), SG_OK);
     p.diameter_mm = 0.00004; /* widens the axis to 1e-5 mm */
     p.percent_finer = 104.0;
+    p.flags = SG_PF_BROWNIAN | SG_PF_OVER_100; /* ringed */
     cr_assert_eq(sg_result_add_point(&r, &p), SG_OK);
     char a[128], b[128];
     path_in(a, sizeof a, "one.png");
@@ -351,6 +352,7 @@ Test(plot, degenerate_results_still_draw)
         char *text = run(cmd);
         cr_assert(strstr(text, "0.00001") != NULL, "axis widened to 1e-5 mm: %s", text);
         cr_assert(strstr(text, "hollow") != NULL, "legend explains hollow markers");
+        cr_assert(strstr(text, "ringed") != NULL, "legend explains ringed markers");
         free(text);
     }
     sg_result_release(&r);

@@ -16,7 +16,8 @@
  *    after sedimentation) as diamonds, hydrometer points as circles, pipette
  *    points as triangles; a point not used for the curve (on_curve false,
  *    e.g. a sedimentation point coarser than the finest sieve) is drawn
- *    hollow;
+ *    hollow; a point with a QC finding of its own (Reynolds, Brownian,
+ *    temperature, not falling...) is ringed;
  *  - the interpolated curve (res->curve, its own interpolation method);
  *  - D10, D30 and D60, when determined, with thin dashed drop lines and
  *    labels; with Monte Carlo results a whisker shows each one's 95 %

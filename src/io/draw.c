@@ -727,14 +727,34 @@ static void chart_dvalues(const struct chart *c, const struct sg_result *res)
     }
 }
 
+/* A point carries a QC finding of its own (other than lying coarser than
+ * the finest sieve, which the hollow marker already shows). */
+static bool qc_flagged(const struct sg_point *p)
+{
+    return (p->flags & ~(unsigned)SG_PF_COARSER_THAN_SIEVE) != 0;
+}
+
+/* The ring drawn around a point with a QC finding. */
+static void ring(cairo_t *cr, double x, double y)
+{
+    cairo_new_path(cr);
+    cairo_arc(cr, x, y, 5.6, 0.0, 2.0 * 3.14159265358979323846);
+    sg_draw_rgb(cr, INK);
+    cairo_set_line_width(cr, 0.9);
+    cairo_set_dash(cr, NULL, 0, 0.0);
+    cairo_stroke(cr);
+}
+
 static void chart_points(const struct chart *c, const struct sg_result *res)
 {
     for (size_t i = 0; i < res->n_points; i++) {
         const struct sg_point *p = &res->points[i];
         if (!placeable(p->diameter_mm) || !isfinite(p->percent_finer))
             continue;
-        sg_draw_marker(c->cr, sg_draw_marker_for(p->source), cx(c, p->diameter_mm), cy(c, p->percent_finer), 5.2,
-                       !p->on_curve, sg_draw_colour_for(p->source));
+        const double x = cx(c, p->diameter_mm), y = cy(c, p->percent_finer);
+        sg_draw_marker(c->cr, sg_draw_marker_for(p->source), x, y, 5.2, !p->on_curve, sg_draw_colour_for(p->source));
+        if (qc_flagged(p))
+            ring(c->cr, x, y);
     }
 }
 
@@ -779,12 +799,14 @@ static double panel_heading(cairo_t *cr, double x, double y, const char *s)
 static void chart_panel(cairo_t *cr, double x, double y, double w, const struct sg_result *res,
                         enum sg_axis_bands sys, bool band95)
 {
-    bool seen[4] = {false, false, false, false}, hollow = false;
+    bool seen[4] = {false, false, false, false}, hollow = false, flagged = false;
     for (size_t i = 0; i < res->n_points; i++) {
         if ((unsigned)res->points[i].source < 4)
             seen[res->points[i].source] = true;
         if (!res->points[i].on_curve)
             hollow = true;
+        if (qc_flagged(&res->points[i]))
+            flagged = true;
     }
     static const char *const names[4] = {"Sieve (whole sample)", "Fine sieve (specimen)", "Hydrometer", "Pipette"};
     y = panel_heading(cr, x, y, "Legend");
@@ -803,6 +825,14 @@ static void chart_panel(cairo_t *cr, double x, double y, double w, const struct 
         sg_draw_marker(cr, SG_MARK_CIRCLE, x + 6.0, y - 2.7, 5.2, true, SEDIMENT);
         sg_draw_rgb(cr, INK);
         sg_draw_text_fit(cr, x + 16.0, y, w - 16.0, 0.0, "hollow: not used for the curve");
+        y += 10.0;
+    }
+    if (flagged) {
+        sg_draw_marker(cr, SG_MARK_CIRCLE, x + 6.0, y - 2.7, 5.2, false, SEDIMENT);
+        ring(cr, x + 6.0, y - 2.7);
+        sg_draw_rgb(cr, INK);
+        sg_draw_font(cr, 7.5, false);
+        sg_draw_text_fit(cr, x + 16.0, y, w - 16.0, 0.0, "ringed: QC finding at the point");
         y += 10.0;
     }
     sg_draw_rgb(cr, CURVE);
