@@ -850,6 +850,20 @@ Test(recordio, read_file_io_errors)
     no_leaks();
 }
 
+Test(recordio, read_file_failing_read)
+{
+    /* Linux: /proc/self/mem opens, but reading at offset 0 (unmapped) fails with EIO. */
+    if (access("/proc/self/mem", R_OK) != 0)
+        cr_skip_test("no /proc/self/mem");
+    char *text = NULL;
+    size_t len = 0;
+    struct sg_error err;
+    cr_assert_eq(sg_recordio_read_file("/proc/self/mem", &text, &len, &err), SG_EIO);
+    cr_assert_not_null(strstr(err.msg, "cannot read '/proc/self/mem'"), "%s", err.msg);
+    cr_assert_null(text);
+    no_leaks();
+}
+
 Test(recordio, read_file_from_a_pipe)
 {
     /* not a regular file: size unknown to fstat, read until the end */
