@@ -179,23 +179,21 @@ enum sg_status sg_axis_lin_ticks(double lo, double hi, double step, struct sg_ax
                             lo, hi, step);
     const double first = ceil(lo / step - AXIS_LOG_TOL);
     const double last = floor(hi / step + AXIS_LOG_TOL);
-    if (last < first) {
+    if (last < first)
         return SG_OK;
-    }
     if (last - first + 1.0 > (double)cap)
         return sg_error_set(err, SG_ELIMIT, 0, 0,
                             "axis %g to %g with step %g needs more than %zu ticks (give a larger step)", lo, hi,
                             step, cap);
     const int dec = step_decimals(step);
-    size_t count = 0;
-    for (double i = first; i <= last; i += 1.0) {
-        double v = i * step;
+    const size_t count = (size_t)(last - first) + 1;
+    for (size_t i = 0; i < count; i++) {
+        double v = (first + (double)i) * step;
         if (fabs(v) < step * AXIS_LOG_TOL)
             v = 0.0;
-        out[count].value = v;
-        out[count].major = true;
-        fixed(v, dec, out[count].label, sizeof out[count].label);
-        count++;
+        out[i].value = v;
+        out[i].major = true;
+        fixed(v, dec, out[i].label, sizeof out[i].label);
     }
     *n = count;
     return SG_OK;
