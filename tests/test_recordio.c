@@ -684,6 +684,15 @@ Test(recordio, mixed_separators_name_the_line_that_set_it)
     no_leaks();
 }
 
+Test(recordio, tab_separated_rows)
+{
+    struct run r;
+    parse(&r, "# exported with tabs\ntest\tid\tT13\n");
+    expect_first(&r, SG_EPARSE, 2, 1, "line 2 separates its fields with tabs (separate them with ',' or ';')");
+    release(&r);
+    no_leaks();
+}
+
 Test(recordio, empty_and_comment_only_texts)
 {
     struct run r;

@@ -792,6 +792,11 @@ static void process_row(struct rp *p)
             return;
         }
     }
+    if (n == 1 && strchr(f0->text, '\t') != NULL) {
+        problem(p, SG_EPARSE, f0->line, f0->col,
+                "line %u separates its fields with tabs (separate them with ',' or ';')", f0->line);
+        return;
+    }
     char t[SHOW_BUF];
     if (f0->len == 0) {
         problem(p, SG_EPARSE, f0->line, f0->col,
