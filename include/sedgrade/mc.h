@@ -82,9 +82,10 @@
 
 /* Coverage probability of the reported intervals (SPEC low95/high95). */
 #define SG_MC_COVERAGE 0.95
-/* Most draws accepted in one run. Memory: about 0.4 bytes per draw per
- * numeric summary quantity (only the tails needed for the coverage interval
- * are kept), so 10^7 draws of 60 quantities take about 240 MB. */
+/* Most draws accepted in one run. Memory: about 0.6 bytes per draw per
+ * numeric summary quantity (only the 2.5 % tails needed for the coverage
+ * interval are kept, with room to spare), so 10^6 draws of 55 quantities
+ * take about 33 MB and 10^7 draws about 330 MB. */
 #define SG_MC_DRAWS_MAX 10000000u
 /* Draws are generated in blocks of this size; each block has its own seed
  * derived from (seed, block index), so the output does not depend on the
