@@ -30,19 +30,21 @@ done
 [ -x /usr/bin/time ] || { echo "bench: /usr/bin/time is needed (apt-get install time)" >&2; exit 3; }
 mkdir -p "$out"
 
-# best_of CMD...: runs CMD $runs times; sets best_s and rss_kb (peak RSS of
-# the fastest run) and last_rc; the tally line of the last run in tally.
+# best_of CMD...: runs CMD $runs times; sets best_s, cpu_s (user + system
+# seconds) and rss_kb (peak RSS) of the fastest run, and last_rc; the tally
+# line of the last run in tally. CPU seconds tell the work apart from waiting
+# when other jobs load the machine.
 best_of() {
-  best_s=; rss_kb=; last_rc=0; tally=
+  best_s=; cpu_s=; rss_kb=; last_rc=0; tally=
   for _ in $(seq "$runs"); do
     rm -rf "$out/res"
     sync
-    /usr/bin/time -f '%e %M' -o "$out/time.txt" "$@" 2>"$out/stderr.txt" >/dev/null
+    /usr/bin/time -f '%e %M %U %S' -o "$out/time.txt" "$@" 2>"$out/stderr.txt" >/dev/null
     last_rc=$?
-    read -r s kb < <(tail -n 1 "$out/time.txt")
+    read -r s kb us ss < <(tail -n 1 "$out/time.txt")
     tally=$(grep -v '^Command exited' "$out/stderr.txt" | tail -n 1)
     if [ -z "$best_s" ] || awk -v a="$s" -v b="$best_s" 'BEGIN { exit !(a < b) }'; then
-      best_s=$s; rss_kb=$kb
+      best_s=$s; rss_kb=$kb; cpu_s=$(awk -v u="$us" -v y="$ss" 'BEGIN { printf "%.2f", u + y }')
     fi
   done
 }
@@ -69,28 +71,30 @@ for n in $sizes; do
   best_of "$prog" reduce "$arch" -o "$out/res" --calibration "$register" "${jobs[@]}"
   [ "$last_rc" -le 2 ] || { echo "bench: sedgrade reduce failed (exit $last_rc)" >&2; cat "$out/stderr.txt" >&2; status=1; }
   nfiles=$(find "$out/res" -type f | wc -l)
-  rows+=("$(printf '%-8s %-16s %8s %9.1f  %-16s %s' "$n" "default" "$best_s" "$(awk -v k="$rss_kb" 'BEGIN { print k / 1024 }')" "$(verdict "$n" "$best_s" "$target_default_s")" "$tally")")
+  rows+=("$(printf '%-8s %-15s %7s %7s %7.1f  %-16s %s' "$n" "default" "$best_s" "$cpu_s" "$(awk -v k="$rss_kb" 'BEGIN { print k / 1024 }')" "$(verdict "$n" "$best_s" "$target_default_s")" "$tally")")
 
   # The floor: cp -r creating the very files the run wrote.
   rm -rf "$out/floor_src"; mv "$out/res" "$out/floor_src"
-  floor_best=
+  floor_best=; floor_cpu=
   for _ in $(seq "$runs"); do
     rm -rf "$out/floor_dst"; sync
-    /usr/bin/time -f '%e %M' -o "$out/time.txt" cp -r "$out/floor_src" "$out/floor_dst"
-    read -r s _ < <(tail -n 1 "$out/time.txt")
-    if [ -z "$floor_best" ] || awk -v a="$s" -v b="$floor_best" 'BEGIN { exit !(a < b) }'; then floor_best=$s; fi
+    /usr/bin/time -f '%e %M %U %S' -o "$out/time.txt" cp -r "$out/floor_src" "$out/floor_dst"
+    read -r s _ us ss < <(tail -n 1 "$out/time.txt")
+    if [ -z "$floor_best" ] || awk -v a="$s" -v b="$floor_best" 'BEGIN { exit !(a < b) }'; then
+      floor_best=$s; floor_cpu=$(awk -v u="$us" -v y="$ss" 'BEGIN { printf "%.2f", u + y }')
+    fi
   done
   rm -rf "$out/floor_src" "$out/floor_dst"
-  rows+=("$(printf '%-8s %-16s %8s %9s  %-16s %s' "$n" "cp -r (floor)" "$floor_best" "-" "-" "$nfiles files")")
+  rows+=("$(printf '%-8s %-15s %7s %7s %7s  %-16s %s' "$n" "cp -r (floor)" "$floor_best" "$floor_cpu" "-" "-" "$nfiles files")")
 
   best_of "$prog" reduce "$arch" -o "$out/res" --calibration "$register" --outputs none "${jobs[@]}"
   [ "$last_rc" -le 2 ] || { echo "bench: sedgrade reduce --outputs none failed (exit $last_rc)" >&2; status=1; }
-  rows+=("$(printf '%-8s %-16s %8s %9.1f  %-16s %s' "$n" "--outputs none" "$best_s" "$(awk -v k="$rss_kb" 'BEGIN { print k / 1024 }')" "$(verdict "$n" "$best_s" "$target_none_s")" "$tally")")
+  rows+=("$(printf '%-8s %-15s %7s %7s %7.1f  %-16s %s' "$n" "--outputs none" "$best_s" "$cpu_s" "$(awk -v k="$rss_kb" 'BEGIN { print k / 1024 }')" "$(verdict "$n" "$best_s" "$target_none_s")" "$tally")")
   rm -rf "$out/res"
 done
 
 echo
-printf '%-8s %-16s %8s %9s  %-16s %s\n' records outputs wall_s rss_MB target "tally / note"
+printf '%-8s %-15s %7s %7s %7s  %-16s %s\n' records outputs wall_s cpu_s rss_MB target "tally / note"
 printf '%s\n' "${rows[@]}"
 rm -f "$out/time.txt" "$out/stderr.txt"
 
