@@ -361,7 +361,7 @@ Test(report, record_without_optional_data)
     (void)snprintf(res.calibration_used, sizeof res.calibration_used, "inline");
     char *t = write_and_read("bare.pdf");
     contains(t, "no standard selected");
-    contains(t, "IAPWS");
+    contains(t, "exact physics");
     contains(t, "constants given in the test record");
     cr_assert(strstr(t, "nan") == NULL && strstr(t, "inf ") == NULL);
     free(t);

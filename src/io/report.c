@@ -46,7 +46,7 @@ static void method_statement(const struct sg_record *rec, char *buf, size_t size
     const bool pip = rec->method == SG_METHOD_PIPETTE;
     switch (rec->standard) {
     case SG_STANDARD_ASTM_D7928:
-        (void)snprintf(buf, size, "ASTM D7928-17 %s; sieving as ASTM D6913",
+        (void)snprintf(buf, size, "ASTM D7928-17 %s, with sieving",
                        pip ? "conventions, pipette sampling" : "hydrometer analysis");
         return;
     case SG_STANDARD_BS1377_2:
@@ -68,7 +68,7 @@ static const char *conventions(enum sg_standard s)
     case SG_STANDARD_ISO17892_4: return "ISO 17892-4 conventions where standards differ";
     case SG_STANDARD_NONE: break;
     }
-    return "exact physics: \xcf\x81s \xe2\x88\x92 \xcf\x81w(T), IAPWS water properties";
+    return "exact physics: \xcf\x81s \xe2\x88\x92 \xcf\x81w(T), water density and viscosity at T";
 }
 
 /* ---- small text helpers ---- */
