@@ -4,6 +4,7 @@
 #include "sedgrade/curve.h"
 
 #include <math.h>
+#include <stdbool.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -31,18 +32,34 @@ void sg_curve_init(struct sg_curve *c)
     c->method = SG_INTERP_LOGLINEAR;
 }
 
-void sg_curve_release(struct sg_curve *c)
+static void free_impl(struct sg_curve *c)
 {
-    if (c == NULL)
-        return;
     struct curve_impl *im = c->impl;
     if (im != NULL) {
         gsl_interp_free(im->interp);
         free(im);
     }
+    c->impl = NULL;
+}
+
+void sg_curve_release(struct sg_curve *c)
+{
+    if (c == NULL)
+        return;
+    free_impl(c);
     free(c->log10_d);
     free(c->percent);
+    free(c->scratch);
     sg_curve_init(c);
+}
+
+void sg_curve_clear(struct sg_curve *c)
+{
+    if (c == NULL)
+        return;
+    free_impl(c);
+    c->n = 0;
+    c->method = SG_INTERP_LOGLINEAR;
 }
 
 /* A point with its input position, so equal diameters of equal rank keep
@@ -54,14 +71,36 @@ struct sorted_point {
     size_t index;
 };
 
-static int by_size_rank_index(const void *a, const void *b)
+/* The curve's order: by size, then rank, then input position (a total order,
+ * so every sorting method gives the same sequence). */
+static bool after(const struct sorted_point *x, const struct sorted_point *y)
 {
-    const struct sorted_point *x = a, *y = b;
     if (x->log10_d != y->log10_d)
-        return (x->log10_d > y->log10_d) - (x->log10_d < y->log10_d);
+        return x->log10_d > y->log10_d;
     if (x->rank != y->rank)
-        return (x->rank > y->rank) - (x->rank < y->rank);
-    return (x->index > y->index) - (x->index < y->index);
+        return x->rank > y->rank;
+    return x->index > y->index;
+}
+
+/* Room for n nodes (and the sorting scratch), keeping what a previous build
+ * left when it is large enough. */
+static enum sg_status reserve(struct sg_curve *c, size_t n)
+{
+    if (n <= c->cap && c->log10_d != NULL && c->percent != NULL && c->scratch != NULL)
+        return SG_OK;
+    double *l = realloc(c->log10_d, n * sizeof *l);
+    if (l != NULL)
+        c->log10_d = l;
+    double *p = realloc(c->percent, n * sizeof *p);
+    if (p != NULL)
+        c->percent = p;
+    struct sorted_point *s = realloc(c->scratch, n * sizeof *s);
+    if (s != NULL)
+        c->scratch = s;
+    if (l == NULL || p == NULL || s == NULL)
+        return SG_ENOMEM;
+    c->cap = n;
+    return SG_OK;
 }
 
 static enum sg_status translate_gsl(int gsl_status, const char *what, struct sg_error *err)
@@ -94,38 +133,54 @@ static enum sg_status prepare_steffen(struct sg_curve *c, struct sg_error *err)
 enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *pts, size_t n,
                               enum sg_interp method, struct sg_error *err)
 {
-    sg_curve_release(c);
-    if (pts == NULL && n > 0)
-        return sg_error_set(err, SG_EINVAL, 0, 0, "no points given for %zu curve points", n);
-    if (method != SG_INTERP_LOGLINEAR && method != SG_INTERP_MONOTONE)
-        return sg_error_set(err, SG_EINVAL, 0, 0,
-                            "unknown interpolation method %d (use loglinear or monotone)", (int)method);
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(pts[i].diameter_mm) || pts[i].diameter_mm <= 0.0)
-            return sg_error_set(err, SG_EINVAL, 0, 0,
-                                "curve point %zu: diameter %g mm must be positive and finite", i + 1,
-                                pts[i].diameter_mm);
-        if (!isfinite(pts[i].percent_finer))
-            return sg_error_set(err, SG_EINVAL, 0, 0,
-                                "curve point %zu at %g mm: percent finer %g is not a number", i + 1,
-                                pts[i].diameter_mm, pts[i].percent_finer);
-    }
-    if (n < 2)
-        return sg_error_set(err, SG_EDOM, 0, 0,
-                            "%zu point%s on the curve: at least two sizes are needed to interpolate", n,
-                            n == 1 ? "" : "s");
-
+    free_impl(c);
+    c->n = 0;
     enum sg_status st = SG_OK;
-    struct sorted_point *s = malloc(n * sizeof *s);
-    c->log10_d = malloc(n * sizeof *c->log10_d);
-    c->percent = malloc(n * sizeof *c->percent);
-    if (s == NULL || c->log10_d == NULL || c->percent == NULL) {
+    if (pts == NULL && n > 0) {
+        st = sg_error_set(err, SG_EINVAL, 0, 0, "no points given for %zu curve points", n);
+        goto cleanup;
+    }
+    if (method != SG_INTERP_LOGLINEAR && method != SG_INTERP_MONOTONE) {
+        st = sg_error_set(err, SG_EINVAL, 0, 0, "unknown interpolation method %d (use loglinear or monotone)",
+                          (int)method);
+        goto cleanup;
+    }
+    for (size_t i = 0; i < n; i++) {
+        if (!isfinite(pts[i].diameter_mm) || pts[i].diameter_mm <= 0.0) {
+            st = sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu: diameter %g mm must be positive and finite",
+                              i + 1, pts[i].diameter_mm);
+            goto cleanup;
+        }
+        if (!isfinite(pts[i].percent_finer)) {
+            st = sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu at %g mm: percent finer %g is not a number",
+                              i + 1, pts[i].diameter_mm, pts[i].percent_finer);
+            goto cleanup;
+        }
+    }
+    if (n < 2) {
+        st = sg_error_set(err, SG_EDOM, 0, 0,
+                          "%zu point%s on the curve: at least two sizes are needed to interpolate", n,
+                          n == 1 ? "" : "s");
+        goto cleanup;
+    }
+
+    if (reserve(c, n) != SG_OK) {
         st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building a curve of %zu points", n);
         goto cleanup;
     }
-    for (size_t i = 0; i < n; i++)
-        s[i] = (struct sorted_point){log10(pts[i].diameter_mm), pts[i].percent_finer, pts[i].rank, i};
-    qsort(s, n, sizeof *s, by_size_rank_index);
+    /* Insertion sort, fed from the last point: the pipeline lists each
+     * source from coarse to fine, so the reversed input is (nearly) in
+     * order and the sort costs one comparison per point. */
+    struct sorted_point *s = c->scratch;
+    for (size_t i = n, done = 0; i-- > 0; done++) {
+        const struct sorted_point p = {log10(pts[i].diameter_mm), pts[i].percent_finer, pts[i].rank, i};
+        size_t j = done;
+        while (j > 0 && after(&s[j - 1], &p)) {
+            s[j] = s[j - 1];
+            j--;
+        }
+        s[j] = p;
+    }
 
     /* A run of the same size (within SG_CURVE_SAME_LOG10_D of its first
      * member) becomes one node: the member with the lowest rank, then the
@@ -153,7 +208,6 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
         st = prepare_steffen(c, err);
 
 cleanup:
-    free(s);
     if (st != SG_OK)
         sg_curve_release(c);
     return st;
@@ -214,8 +268,20 @@ enum sg_status sg_curve_percent_at(const struct sg_curve *c, double d_mm, double
         return sg_error_set(err, SG_EINVAL, 0, 0, "no place to store the percent finer");
     if (!isfinite(d_mm) || d_mm <= 0.0)
         return sg_error_set(err, SG_EINVAL, 0, 0, "diameter %g mm must be positive and finite", d_mm);
+    return sg_curve_percent_at_log10(c, d_mm, log10(d_mm), percent, err);
+}
+
+enum sg_status sg_curve_percent_at_log10(const struct sg_curve *c, double d_mm, double log10_d_mm,
+                                         double *percent, struct sg_error *err)
+{
+    if (c == NULL || c->n < 2 || c->log10_d == NULL || c->percent == NULL)
+        return sg_error_set(err, SG_EDOM, 0, 0, "no grading curve (fewer than two sizes measured)");
+    if (percent == NULL)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "no place to store the percent finer");
+    if (!isfinite(d_mm) || d_mm <= 0.0)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "diameter %g mm must be positive and finite", d_mm);
     const size_t last = c->n - 1;
-    double x = log10(d_mm);
+    double x = log10_d_mm;
     if (!within_range(&x, c->log10_d[0], c->log10_d[last])) {
         if (x > c->log10_d[last]) {
             if (fabs(c->percent[last] - 100.0) <= SG_CURVE_END_TOL_PCT) {
@@ -303,6 +369,8 @@ cleanup:
 /* The message for a percent the curve never reaches. */
 static enum sg_status not_reached(const struct sg_curve *c, double p, struct sg_error *err)
 {
+    if (err == NULL)
+        return SG_EDOM;
     const size_t last = c->n - 1;
     double pmin = c->percent[0], pmax = c->percent[0];
     for (size_t i = 1; i < c->n; i++) {

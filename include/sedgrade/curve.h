@@ -39,6 +39,9 @@ struct sg_curve {
     double *log10_d;  /* strictly increasing, n values */
     double *percent;  /* percent finer at each node, n values */
     void *impl;       /* GSL interpolation state (monotone method, n >= 3); NULL otherwise */
+    /* storage kept from build to build (sg_curve_clear keeps it): */
+    size_t cap;       /* room in log10_d and percent, nodes */
+    void *scratch;    /* sorting work space for cap points */
 };
 
 /* Two diameters whose log10 values differ by no more than this are the same
@@ -56,12 +59,18 @@ void sg_curve_init(struct sg_curve *c);
 /* Releases a curve's memory and GSL state; it is empty afterwards. Accepts NULL. */
 void sg_curve_release(struct sg_curve *c);
 
+/* Empties a curve (no nodes, no GSL state) but keeps its buffers for the
+ * next sg_curve_build, which then allocates nothing when the new curve
+ * fits. Release it with sg_curve_release as usual. Accepts NULL. */
+void sg_curve_clear(struct sg_curve *c);
+
 /* Builds the curve from n points in any order: sorts by diameter, merges
  * equal diameters (see SG_CURVE_SAME_LOG10_D) keeping the point with the
  * lowest rank (ASTM D6913: the coarser set's value; among equal ranks the
  * first in input order), and prepares interpolation (Steffen state for
  * SG_INTERP_MONOTONE with 3 or more nodes). c must have been initialised
- * (sg_curve_init) or built before; any previous content is released.
+ * (sg_curve_init) or built (or cleared) before; any previous content is
+ * replaced, its buffers reused when large enough.
  * Returns SG_EINVAL for a NULL pts with n > 0, an unknown method, a
  * non-positive or non-finite diameter or a non-finite percent; SG_EDOM for
  * fewer than 2 distinct diameters (nothing to interpolate); SG_ENOMEM;
@@ -80,6 +89,12 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
  * empty curve; SG_ENUMERIC if GSL fails. */
 enum sg_status sg_curve_percent_at(const struct sg_curve *c, double d_mm, double *percent,
                                    struct sg_error *err);
+
+/* sg_curve_percent_at with log10(d_mm) computed by the caller (for sizes
+ * evaluated again and again, e.g. the fixed class boundaries):
+ * log10_d_mm must be log10(d_mm). Same results, statuses and messages. */
+enum sg_status sg_curve_percent_at_log10(const struct sg_curve *c, double d_mm, double log10_d_mm,
+                                         double *percent, struct sg_error *err);
 
 /* Diameter, mm, at which percent_finer percent is finer (D_x).
  * Convention for plateaus and non-monotone data (METHODS.md 7.2): scanning
