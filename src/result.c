@@ -33,7 +33,19 @@ void sg_result_clear(struct sg_result *r)
     r->id[0] = '\0';
     r->calibration_used[0] = '\0';
     r->pp_split = NAN;
-    sg_curve_release(&r->curve);
+    sg_curve_clear(&r->curve); /* its buffers serve the next record */
+}
+
+/* Copies src into dst of size n (n > 0), cut at n - 1 bytes like
+ * snprintf(dst, n, "%s", src), without going through printf. */
+static void copy_text(char *dst, size_t n, const char *src)
+{
+    size_t len = src != NULL ? strlen(src) : 0;
+    if (len > n - 1)
+        len = n - 1;
+    if (len > 0)
+        memcpy(dst, src, len);
+    dst[len] = '\0';
 }
 
 static enum sg_status grow(void **items, size_t n, size_t *cap, size_t size)
@@ -70,7 +82,7 @@ enum sg_status sg_result_add_flag(struct sg_result *r, const char *name, enum sg
         return st;
     struct sg_flag *f = &r->flags[r->n_flags++];
     memset(f, 0, sizeof *f);
-    (void)snprintf(f->name, sizeof f->name, "%s", name);
+    copy_text(f->name, sizeof f->name, name);
     f->severity = sev;
     f->line = line;
     va_list ap;
@@ -89,10 +101,15 @@ static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, c
     if (st != SG_OK)
         return NULL;
     struct sg_quantity *q = &r->quantities[r->n_quantities++];
-    memset(q, 0, sizeof *q);
-    (void)snprintf(q->name, sizeof q->name, "%s", name);
-    (void)snprintf(q->unit, sizeof q->unit, "%s", unit ? unit : "");
-    (void)snprintf(q->note, sizeof q->note, "%s", note ? note : "");
+    /* every field set, the strings only up to their terminator (a quantity
+     * is written about 70 times per reduction) */
+    copy_text(q->name, sizeof q->name, name);
+    copy_text(q->unit, sizeof q->unit, unit);
+    copy_text(q->note, sizeof q->note, note);
+    q->text[0] = '\0';
+    q->determined = false;
+    q->is_text = false;
+    q->has_u = false;
     q->value = NAN;
     q->u = q->low95 = q->high95 = NAN;
     return q;
@@ -126,7 +143,7 @@ enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const c
         return SG_ENOMEM;
     q->is_text = true;
     q->determined = text != NULL && text[0] != '\0';
-    (void)snprintf(q->text, sizeof q->text, "%s", text ? text : "");
+    copy_text(q->text, sizeof q->text, text);
     return SG_OK;
 }
 
