@@ -29,9 +29,13 @@ double sg_water_viscosity_iapws_pa_s(double temp_k, double density_kg_m3)
     const double tr = temp_k / SG_IAPWS_T_STAR_K;
     const double rr = density_kg_m3 / SG_IAPWS_RHO_STAR_KG_M3;
 
-    double s0 = 0.0;
-    for (int i = 0; i < 4; i++)
-        s0 += h0[i] / pow(tr, (double)i);
+    /* sum of H_i / Tr^i, the powers built by multiplication (Tr^0, Tr^1
+     * and Tr^2 are exactly what pow() gives, Tr^3 within an ulp) */
+    double s0 = 0.0, tri = 1.0;
+    for (int i = 0; i < 4; i++) {
+        s0 += h0[i] / tri;
+        tri *= tr;
+    }
     const double mu0 = 100.0 * sqrt(tr) / s0;
 
     const double x = 1.0 / tr - 1.0;
