@@ -2,11 +2,104 @@
 #include "sedgrade/csvout.h"
 
 #include <csv.h>
+#include <stdbool.h>
 #include <errno.h>
 #include <math.h>
 #include <string.h>
 
 #include "sedgrade/qc.h"
+
+/* Powers of ten that a double holds exactly (10^22 is the largest). */
+static const double pow10_exact[23] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,  1e8,  1e9,  1e10, 1e11,
+                                       1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
+
+/* Writes the six significant digits of a (finite, > 0) as the integer m in
+ * [100000, 999999] with decimal exponent *e, or returns false when the
+ * rounding is too close to call (then the caller asks snprintf). The scaled
+ * value carries an error of about 1e-10 units of the sixth digit, far below
+ * the 1e-6 tie guard, so the digits equal printf's correctly rounded ones. */
+static bool six_digits(double a, int *e, long *m)
+{
+    int ex = (int)floor(log10(a));
+    for (int tries = 0; tries < 3; tries++) {
+        const int k = 5 - ex;
+        if (k > 22 || k < -22)
+            return false;
+        const double s = k >= 0 ? a * pow10_exact[k] : a / pow10_exact[-k];
+        const double fl = floor(s), frac = s - fl;
+        if (fabs(frac - 0.5) < 1e-6)
+            return false;
+        const long v = (long)fl + (frac > 0.5);
+        if (v >= 1000000)
+            ex++;
+        else if (v < 100000)
+            ex--;
+        else {
+            *e = ex;
+            *m = v;
+            return true;
+        }
+    }
+    return false;
+}
+
+/* printf's "%.6g" for a finite non-zero x, without printf on the common path:
+ * the CSV writers format hundreds of numbers per test (test_csvout compares
+ * it with snprintf on millions of values). */
+static void format_g6(double x, char *buf, size_t size)
+{
+    int e = 0;
+    long m = 0;
+    if (!six_digits(fabs(x), &e, &m)) {
+        (void)snprintf(buf, size, "%.6g", x);
+        return;
+    }
+    char dig[6];
+    for (int i = 5; i >= 0; i--, m /= 10)
+        dig[i] = (char)('0' + m % 10);
+    int nd = 6;
+    while (nd > 1 && dig[nd - 1] == '0')
+        nd--;
+    char out[40];
+    size_t n = 0;
+    if (x < 0)
+        out[n++] = '-';
+    if (e < -4 || e >= 6) {
+        out[n++] = dig[0];
+        if (nd > 1)
+            out[n++] = '.';
+        for (int i = 1; i < nd; i++)
+            out[n++] = dig[i];
+        out[n++] = 'e';
+        out[n++] = e < 0 ? '-' : '+';
+        int ae = e < 0 ? -e : e;
+        if (ae >= 100) {
+            out[n++] = (char)('0' + ae / 100);
+            ae %= 100;
+        }
+        out[n++] = (char)('0' + ae / 10);
+        out[n++] = (char)('0' + ae % 10);
+    } else if (e >= 0) {
+        for (int i = 0; i <= e; i++)
+            out[n++] = dig[i];
+        if (nd > e + 1)
+            out[n++] = '.';
+        for (int i = e + 1; i < nd; i++)
+            out[n++] = dig[i];
+    } else {
+        out[n++] = '0';
+        out[n++] = '.';
+        for (int i = 0; i < -e - 1; i++)
+            out[n++] = '0';
+        for (int i = 0; i < nd; i++)
+            out[n++] = dig[i];
+    }
+    out[n] = '\0';
+    if (n < size)
+        memcpy(buf, out, n + 1);
+    else
+        (void)snprintf(buf, size, "%s", out);
+}
 
 void sg_csvout_number(double x, char *buf, size_t size)
 {
@@ -14,9 +107,11 @@ void sg_csvout_number(double x, char *buf, size_t size)
         buf[0] = '\0';
         return;
     }
-    if (x == 0.0)
-        x = 0.0; /* no "-0" */
-    (void)snprintf(buf, size, "%.6g", x);
+    if (x == 0.0) { /* also -0: no "-0" */
+        (void)snprintf(buf, size, "0");
+        return;
+    }
+    format_g6(x, buf, size);
 }
 
 /* Writes one field, quoted when needed, with a separator before it unless first. */

@@ -1,0 +1,73 @@
+/* test_csvout.c - the CSV writers' number format and file shapes. */
+#include <criterion/criterion.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "sedgrade/csvout.h"
+
+/* The reference is the C library's own "%.6g" (ISO C 7.21.6.1), which the
+ * files promise; the fast path must give the same text for every value. */
+static void same_as_printf(double x)
+{
+    char want[64], got[64];
+    snprintf(want, sizeof want, "%.6g", x == 0.0 ? 0.0 : x);
+    sg_csvout_number(x, got, sizeof got);
+    cr_assert_str_eq(got, want, "x = %.17g", x);
+}
+
+Test(csvout, number_edge_cases)
+{
+    const double xs[] = {1.0,       -1.0,       0.1,        1e-5,       1e-4,        9.999995e-5, 0.000123456,
+                         123456.0,  999999.0,   999999.5,   999999.4,   1e6,         1234567.0,   9.999995,
+                         9.9999949, 0.0000125,  2.5,        1.00000049, 16.295,      0.05882,     0.0055310,
+                         1e-300,    1e300,      -3.21212,   79.11,      0.002,       0.063,       2.0,
+                         63.0,      100.0,      4.9e-324,   1.7976931348623157e308};
+    for (size_t i = 0; i < sizeof xs / sizeof xs[0]; i++)
+        same_as_printf(xs[i]);
+    char buf[32];
+    sg_csvout_number(-0.0, buf, sizeof buf);
+    cr_assert_str_eq(buf, "0");
+    sg_csvout_number(NAN, buf, sizeof buf);
+    cr_assert_str_eq(buf, "");
+    sg_csvout_number(INFINITY, buf, sizeof buf);
+    cr_assert_str_eq(buf, "");
+}
+
+Test(csvout, number_random_values)
+{
+    /* 500 000 values over 40 decades, and the decimal values with 1-8 digits the lab types */
+    unsigned long long s = 88172645463325252ULL;
+    for (int i = 0; i < 500000; i++) {
+        s ^= s << 13;
+        s ^= s >> 7;
+        s ^= s << 17;
+        const double u = (double)(s >> 11) / 9007199254740992.0;
+        const double x = (i & 1 ? -1.0 : 1.0) * pow(10.0, -20.0 + 40.0 * u);
+        same_as_printf(x);
+        if (i % 8 == 0)
+            same_as_printf((double)(long long)(s % 100000000ULL) / pow(10.0, (double)(s % 9)));
+    }
+}
+
+Test(csvout, summary_quotes_and_empty_values)
+{
+    struct sg_result r;
+    sg_result_init(&r);
+    cr_assert_eq(sg_result_add_value(&r, "d60_mm", "mm", 0.0661297, "size at which 60 % is finer"), SG_OK);
+    cr_assert_eq(sg_result_add_undetermined(&r, "d10_mm", "mm", "not determined: below 0.0013 mm, \"finest\""),
+                 SG_OK);
+    cr_assert_eq(sg_result_add_text(&r, "usda_texture", "clay loam", "on the fraction, finer than 2 mm"), SG_OK);
+    char *text = NULL;
+    size_t len = 0;
+    FILE *fp = open_memstream(&text, &len);
+    cr_assert_eq(sg_csvout_summary(fp, &r, false, NULL), SG_OK);
+    fclose(fp);
+    cr_assert_str_eq(text, "quantity,value,unit,note\n"
+                           "d60_mm,0.0661297,mm,size at which 60 % is finer\n"
+                           "d10_mm,,mm,\"not determined: below 0.0013 mm, \"\"finest\"\"\"\n"
+                           "usda_texture,clay loam,,\"on the fraction, finer than 2 mm\"\n");
+    free(text);
+    sg_result_release(&r);
+}
