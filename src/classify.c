@@ -188,18 +188,65 @@ const char *sg_classify_iso_grading(double cu, double cc)
 
 /* ---- summary ----------------------------------------------------------- */
 
+/* The sizes at which the summary reads the curve, each read once per
+ * summary (many fractions share a boundary). log10 of each is written out
+ * so that no logarithm is taken per reading: the correctly rounded values
+ * (checked against 60-digit decimal arithmetic), which are also what the C
+ * library's log10() returns for these sizes. */
+enum bound {
+    B_0_002, B_0_0063, B_0_02, B_0_05, B_0_063, B_0_075, B_0_1, B_0_2, B_0_25, B_0_425, B_0_5,
+    B_0_63, B_1, B_2, B_4_75, B_6_3, B_19, B_20, B_63, B_75, B_200, B_300,
+    N_BOUNDS,
+    B_ZERO = N_BOUNDS /* lower size 0: "finer than" the upper size */
+};
+
+static const struct {
+    double d_mm, log10_d;
+} bounds[N_BOUNDS] = {
+    [B_0_002] = {ISO_CLAY_SILT_MM, -2.6989700043360187},      /* = AASHTO, USDA clay/silt */
+    [B_0_0063] = {ISO_FSI_MSI_MM, -2.2006594505464183},
+    [B_0_02] = {ISO_MSI_CSI_MM, -1.6989700043360187},         /* = FROST_SIZE_MM */
+    [B_0_05] = {USDA_SILT_SAND_MM, -1.3010299956639813},
+    [B_0_063] = {ISO_SILT_SAND_MM, -1.2006594505464183},
+    [B_0_075] = {USCS_FINES_MM, -1.1249387366083},            /* = AASHTO_SILT_SAND_MM */
+    [B_0_1] = {USDA_VFS_FS_MM, -1.0},
+    [B_0_2] = {ISO_FSA_MSA_MM, -0.6989700043360187},
+    [B_0_25] = {USDA_FS_MS_MM, -0.6020599913279624},
+    [B_0_425] = {USCS_FSA_MSA_MM, -0.37161106994968846},      /* = AASHTO_FSA_CSA_MM */
+    [B_0_5] = {USDA_MS_CS_MM, -0.3010299956639812},
+    [B_0_63] = {ISO_MSA_CSA_MM, -0.2006594505464183},
+    [B_1] = {USDA_CS_VCS_MM, 0.0},
+    [B_2] = {ISO_SAND_GRAVEL_MM, 0.3010299956639812},         /* = USCS, AASHTO, USDA 2 mm */
+    [B_4_75] = {USCS_SAND_GRAVEL_MM, 0.6766936096248666},
+    [B_6_3] = {ISO_FGR_MGR_MM, 0.7993405494535817},
+    [B_19] = {USCS_FGR_CGR_MM, 1.2787536009528289},
+    [B_20] = {ISO_MGR_CGR_MM, 1.3010299956639813},
+    [B_63] = {ISO_GRAVEL_COBBLE_MM, 1.7993405494535817},
+    [B_75] = {USCS_GRAVEL_COBBLE_MM, 1.8750612633917},         /* = AASHTO_GRAVEL_BOULDER_MM */
+    [B_200] = {ISO_COBBLE_BOULDER_MM, 2.3010299956639813},
+    [B_300] = {USCS_COBBLE_BOULDER_MM, 2.4771212547196626},
+};
+
+#define MSG_MAX sizeof ((struct sg_error *)0)->msg
+
 struct ctx {
     const struct sg_curve *curve;
     struct sg_result *res;
     struct sg_error *err;
     const char *interp_word; /* "log-linear" or "monotone (Steffen)" */
+    bool quiet;              /* values only (opt->values_only): empty notes, nothing formatted */
+    /* the curve at each bound: percent finer, status, and (not quiet) why not */
+    double p[N_BOUNDS];
+    enum sg_status pst[N_BOUNDS];
+    char why[N_BOUNDS][MSG_MAX];
 };
 
-/* A value read off the curve: determined, or the reason why not. */
+/* A value read off the curve: determined, or the reason why not (empty
+ * when quiet). */
 struct reading {
     bool ok;
     double value;
-    char why[sizeof ((struct sg_error *)0)->msg];
+    const char *why;
 };
 
 static enum sg_status nomem(struct ctx *x)
@@ -209,7 +256,7 @@ static enum sg_status nomem(struct ctx *x)
 
 static enum sg_status add_value(struct ctx *x, const char *name, const char *unit, double v, const char *note)
 {
-    return sg_result_add_value(x->res, name, unit, v, note) == SG_OK ? SG_OK : nomem(x);
+    return sg_result_add_value(x->res, name, unit, v, x->quiet ? "" : note) == SG_OK ? SG_OK : nomem(x);
 }
 
 static enum sg_status add_undet(struct ctx *x, const char *name, const char *unit, const char *fmt, ...)
@@ -221,52 +268,89 @@ static enum sg_status add_undet(struct ctx *x, const char *name, const char *uni
 static enum sg_status add_undet(struct ctx *x, const char *name, const char *unit, const char *fmt, ...)
 {
     char note[SG_QNOTE_MAX];
-    va_list ap;
-    va_start(ap, fmt);
-    (void)vsnprintf(note, sizeof note, fmt, ap);
-    va_end(ap);
+    note[0] = '\0';
+    if (!x->quiet) {
+        va_list ap;
+        va_start(ap, fmt);
+        (void)vsnprintf(note, sizeof note, fmt, ap);
+        va_end(ap);
+    }
     return sg_result_add_undetermined(x->res, name, unit, note) == SG_OK ? SG_OK : nomem(x);
 }
 
 static enum sg_status add_text(struct ctx *x, const char *name, const char *text, const char *note)
 {
-    return sg_result_add_text(x->res, name, text, note) == SG_OK ? SG_OK : nomem(x);
+    return sg_result_add_text(x->res, name, text, x->quiet ? "" : note) == SG_OK ? SG_OK : nomem(x);
 }
 
-/* P(d). ENOMEM is the only status passed on; anything else becomes a reason. */
-static enum sg_status percent_at(struct ctx *x, double d_mm, struct reading *r)
+/* Copies an error message (both buffers MSG_MAX bytes). */
+static void copy_msg(char *dst, const char *src)
 {
-    struct sg_error e;
-    sg_error_clear(&e);
-    r->value = NAN;
-    r->why[0] = '\0';
-    enum sg_status st = sg_curve_percent_at(x->curve, d_mm, &r->value, &e);
-    r->ok = st == SG_OK;
-    if (st == SG_ENOMEM)
-        return sg_error_set(x->err, SG_ENOMEM, 0, 0, "%s", e.msg);
-    if (!r->ok)
-        fmt_into(r->why, sizeof r->why, "%s", e.msg);
+    memcpy(dst, src, strlen(src) + 1);
+}
+
+/* Reads the curve at every bound, in one go. ENOMEM is the only status
+ * passed on; anything else is kept as the reason for that bound. */
+static enum sg_status read_bounds(struct ctx *x)
+{
+    for (size_t b = 0; b < N_BOUNDS; b++) {
+        struct sg_error e;
+        x->p[b] = NAN;
+        const enum sg_status st = sg_curve_percent_at_log10(x->curve, bounds[b].d_mm, bounds[b].log10_d, &x->p[b],
+                                                            x->quiet ? NULL : &e);
+        x->pst[b] = st;
+        if (st == SG_ENOMEM)
+            return x->quiet ? nomem(x) : sg_error_set(x->err, SG_ENOMEM, 0, 0, "%s", e.msg);
+        if (st != SG_OK && !x->quiet)
+            copy_msg(x->why[b], e.msg);
+    }
     return SG_OK;
 }
 
-static enum sg_status diameter_at(struct ctx *x, double p, struct reading *r)
+/* P(d) at a bound (B_ZERO: 0 %, determined). */
+static struct reading at(const struct ctx *x, enum bound b)
+{
+    if (b == B_ZERO)
+        return (struct reading){true, 0.0, ""};
+    const bool ok = x->pst[b] == SG_OK;
+    return (struct reading){ok, x->p[b], ok || x->quiet ? "" : x->why[b]};
+}
+
+/* D at percent p; the reason for a failure (not quiet) lands in why_buf
+ * (MSG_MAX bytes). ENOMEM is the only status passed on. */
+static enum sg_status diameter_at(struct ctx *x, double p, struct reading *r, char *why_buf)
 {
     struct sg_error e;
-    sg_error_clear(&e);
     r->value = NAN;
-    r->why[0] = '\0';
-    enum sg_status st = sg_curve_diameter_at(x->curve, p, &r->value, &e);
+    r->why = "";
+    enum sg_status st = sg_curve_diameter_at(x->curve, p, &r->value, x->quiet ? NULL : &e);
     r->ok = st == SG_OK;
-    if (st == SG_ENOMEM)
-        return sg_error_set(x->err, SG_ENOMEM, 0, 0, "%s", e.msg);
-    if (!r->ok)
-        fmt_into(r->why, sizeof r->why, "%s", e.msg);
+    if (st == SG_ENOMEM) /* the monotone curve's root finder, the only allocation */
+        return sg_error_set(x->err, SG_ENOMEM, 0, 0, "%s", x->quiet ? "out of memory for the root finder" : e.msg);
+    if (!r->ok && !x->quiet) {
+        copy_msg(why_buf, e.msg);
+        r->why = why_buf;
+    }
     return SG_OK;
 }
 
-/* The percentage x written for a quantity name: 2.5 -> "2_5", 10 -> "10". */
+/* The percentage x written for a quantity name: 2.5 -> "2_5", 10 -> "10"
+ * (as "%.6f" with trailing zeros and a bare point dropped, '.' -> '_'). */
 static void dx_label(double p, char *buf, size_t n)
 {
+    if (p >= 1.0 && p <= 100.0 && p == floor(p) && n >= 4) { /* whole percentages: no printf */
+        unsigned v = (unsigned)p;
+        char tmp[4];
+        size_t k = 0;
+        do {
+            tmp[k++] = (char)('0' + v % 10u);
+            v /= 10u;
+        } while (v > 0u);
+        for (size_t i = 0; i < k; i++)
+            buf[i] = tmp[k - 1 - i];
+        buf[k] = '\0';
+        return;
+    }
     fmt_into(buf, n, "%.6f", p);
     char *dot = strchr(buf, '.');
     if (dot != NULL) {
@@ -280,14 +364,37 @@ static void dx_label(double p, char *buf, size_t n)
     }
 }
 
-/* Adds d<x>_mm; stores the reading in *out when out is not NULL. */
-static enum sg_status add_dx(struct ctx *x, double p, struct reading *out)
+/* Appends the strings of a NULL-terminated list to buf (size n), cut like snprintf. */
+static void join(char *buf, size_t n, const char *first, ...)
 {
-    char label[24], name[SG_QNAME_MAX];
-    dx_label(p, label, sizeof label);
-    fmt_into(name, sizeof name, "d%s_mm", label);
+    size_t used = 0;
+    va_list ap;
+    va_start(ap, first);
+    for (const char *s = first; s != NULL; s = va_arg(ap, const char *)) {
+        size_t len = strlen(s);
+        if (len > n - 1 - used)
+            len = n - 1 - used;
+        memcpy(buf + used, s, len);
+        used += len;
+    }
+    va_end(ap);
+    buf[used] = '\0';
+}
+
+/* Adds d<x>_mm, named name (NULL: from p) with p written as shown (p as
+ * "%g" would write it; NULL: formatted); stores the reading in *out when
+ * out is not NULL. */
+static enum sg_status add_dx(struct ctx *x, double p, const char *name, const char *shown, struct reading *out,
+                             char *why_buf)
+{
+    char label[24], name_buf[SG_QNAME_MAX];
+    if (name == NULL) {
+        dx_label(p, label, sizeof label);
+        join(name_buf, sizeof name_buf, "d", label, "_mm", (const char *)NULL);
+        name = name_buf;
+    }
     struct reading r;
-    enum sg_status st = diameter_at(x, p, &r);
+    enum sg_status st = diameter_at(x, p, &r, why_buf);
     if (st != SG_OK)
         return st;
     if (out != NULL)
@@ -295,47 +402,38 @@ static enum sg_status add_dx(struct ctx *x, double p, struct reading *out)
     if (!r.ok)
         return add_undet(x, name, "mm", "D%g not determined: %s", p, r.why);
     char note[SG_QNOTE_MAX];
-    fmt_into(note, sizeof note, "size at which %g %% is finer (%s interpolation on log10 D)", p,
-                   x->interp_word);
+    note[0] = '\0';
+    if (!x->quiet) {
+        if (shown != NULL)
+            join(note, sizeof note, "size at which ", shown, " % is finer (", x->interp_word,
+                 " interpolation on log10 D)", (const char *)NULL);
+        else
+            fmt_into(note, sizeof note, "size at which %g %% is finer (%s interpolation on log10 D)", p,
+                     x->interp_word);
+    }
     return add_value(x, name, "mm", r.value, note);
 }
 
-/* Percent finer at the lower and upper sizes of a fraction; lower_mm 0
- * means "finer than upper_mm". The reason for a failure lands in why. */
-static enum sg_status fraction(struct ctx *x, double lower_mm, double upper_mm, struct reading *r)
+/* Percent finer between two bounds (lower B_ZERO: finer than upper); the
+ * reason for a failure is the upper bound's, else the lower's. */
+static struct reading fraction(const struct ctx *x, enum bound lower, enum bound upper)
 {
-    struct reading hi, lo;
-    enum sg_status st = percent_at(x, upper_mm, &hi);
-    if (st != SG_OK)
-        return st;
-    if (lower_mm > 0.0) {
-        if ((st = percent_at(x, lower_mm, &lo)) != SG_OK)
-            return st;
-    } else {
-        lo = (struct reading){.ok = true, .value = 0.0};
-    }
-    r->ok = hi.ok && lo.ok;
-    r->value = r->ok ? hi.value - lo.value : (double)NAN;
-    r->why[0] = '\0';
-    if (!hi.ok)
-        fmt_into(r->why, sizeof r->why, "%s", hi.why);
-    else if (!lo.ok)
-        fmt_into(r->why, sizeof r->why, "%s", lo.why);
-    return SG_OK;
+    const struct reading hi = at(x, upper), lo = at(x, lower);
+    struct reading r;
+    r.ok = hi.ok && lo.ok;
+    r.value = r.ok ? hi.value - lo.value : (double)NAN;
+    r.why = !hi.ok ? hi.why : !lo.ok ? lo.why : "";
+    return r;
 }
 
 /* Adds a fraction of the whole sample (or, with basis > 0, of the part
  * whose percent of the sample is basis). what describes it for the note. */
-static enum sg_status add_fraction_on(struct ctx *x, const char *name, double lower_mm, double upper_mm,
+static enum sg_status add_fraction_on(struct ctx *x, const char *name, enum bound lower, enum bound upper,
                                       const struct reading *basis, const char *what)
 {
-    struct reading r;
-    enum sg_status st = fraction(x, lower_mm, upper_mm, &r);
-    if (st != SG_OK)
-        return st;
+    const struct reading r = fraction(x, lower, upper);
     if (!r.ok)
         return add_undet(x, name, "%", "not determined: %s", r.why);
-    char note[SG_QNOTE_MAX];
     double v = r.value;
     if (basis != NULL) {
         if (!basis->ok)
@@ -346,18 +444,19 @@ static enum sg_status add_fraction_on(struct ctx *x, const char *name, double lo
                              basis->value);
         v = 100.0 * r.value / basis->value;
     }
-    if (v < NEGATIVE_FRACTION_PCT)
-        fmt_into(note, sizeof note,
-                       "%s; negative: the curve rises with falling size in this range (see the QC flags)", what);
-    else
-        fmt_into(note, sizeof note, "%s", what);
-    return add_value(x, name, "%", v, note);
+    if (v < NEGATIVE_FRACTION_PCT && !x->quiet) {
+        char note[SG_QNOTE_MAX];
+        join(note, sizeof note, what, "; negative: the curve rises with falling size in this range (see the QC flags)",
+             (const char *)NULL);
+        return add_value(x, name, "%", v, note);
+    }
+    return add_value(x, name, "%", v, what);
 }
 
-static enum sg_status add_fraction(struct ctx *x, const char *name, double lower_mm, double upper_mm,
+static enum sg_status add_fraction(struct ctx *x, const char *name, enum bound lower, enum bound upper,
                                    const char *what)
 {
-    return add_fraction_on(x, name, lower_mm, upper_mm, NULL, what);
+    return add_fraction_on(x, name, lower, upper, NULL, what);
 }
 
 /* Cu and Cc from D10, D30, D60. */
@@ -366,13 +465,15 @@ static enum sg_status add_cu_cc(struct ctx *x, const struct reading *d10, const 
 {
     *cu = *cc = NAN;
     char missing[64] = "";
-    const struct reading *d[3] = {d10, d30, d60};
-    const char *label[3] = {"D10", "D30", "D60"};
-    for (int i = 0; i < 3; i++)
-        if (!d[i]->ok) {
-            size_t len = strlen(missing);
-            fmt_into(missing + len, sizeof missing - len, "%s%s", len ? ", " : "", label[i]);
-        }
+    if (!x->quiet) {
+        const struct reading *d[3] = {d10, d30, d60};
+        const char *label[3] = {"D10", "D30", "D60"};
+        for (int i = 0; i < 3; i++)
+            if (!d[i]->ok) {
+                size_t len = strlen(missing);
+                join(missing + len, sizeof missing - len, len ? ", " : "", label[i], (const char *)NULL);
+            }
+    }
     enum sg_status st;
     if (!d10->ok || !d60->ok)
         st = add_undet(x, "cu", "", "not determined: %s not determined (Cu = D60 / D10)", missing);
@@ -382,7 +483,7 @@ static enum sg_status add_cu_cc(struct ctx *x, const struct reading *d10, const 
     }
     if (st != SG_OK)
         return st;
-    if (missing[0] != '\0')
+    if (!d10->ok || !d30->ok || !d60->ok)
         return add_undet(x, "cc", "", "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
     *cc = d30->value * d30->value / (d10->value * d60->value);
     return add_value(x, "cc", "", *cc, "coefficient of curvature D30^2 / (D10 D60)");
@@ -390,12 +491,9 @@ static enum sg_status add_cu_cc(struct ctx *x, const struct reading *d10, const 
 
 static enum sg_status add_usda(struct ctx *x, struct reading *p2)
 {
-    struct reading p005, p0002;
+    *p2 = at(x, B_2);
+    const struct reading p005 = at(x, B_0_05), p0002 = at(x, B_0_002);
     enum sg_status st;
-    if ((st = percent_at(x, USDA_FINE_EARTH_MM, p2)) != SG_OK ||
-        (st = percent_at(x, USDA_SILT_SAND_MM, &p005)) != SG_OK ||
-        (st = percent_at(x, USDA_CLAY_SILT_MM, &p0002)) != SG_OK)
-        return st;
     const char *names[3] = {"usda_sand_pct", "usda_silt_pct", "usda_clay_pct"};
     const char *what[3] = {"USDA sand 0.05-2 mm, % of the fraction finer than 2 mm",
                            "USDA silt 0.002-0.05 mm, % of the fraction finer than 2 mm",
@@ -409,14 +507,16 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
         const struct reading *bad = !p2->ok ? p2 : !upper[i]->ok ? upper[i] : (lower[i] && !lower[i]->ok) ? lower[i] : NULL;
         if (bad != NULL) {
             all = false;
-            fmt_into(why, sizeof why, "%s", bad->why);
+            if (!x->quiet)
+                join(why, sizeof why, bad->why, (const char *)NULL);
             if ((st = add_undet(x, names[i], "%", "not determined: %s", bad->why)) != SG_OK)
                 return st;
             continue;
         }
         if (!(p2->value > 0.0)) {
             all = false;
-            fmt_into(why, sizeof why, "no material finer than 2 mm (%g %%)", p2->value);
+            if (!x->quiet)
+                fmt_into(why, sizeof why, "no material finer than 2 mm (%g %%)", p2->value);
             if ((st = add_undet(x, names[i], "%", "not determined: %s", why)) != SG_OK)
                 return st;
             continue;
@@ -434,13 +534,14 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
                          "rises with falling size, see the QC flags)",
                          v[0], v[1], v[2]);
     char note[SG_QNOTE_MAX];
-    if (p2->value < 100.0 - SG_CURVE_END_TOL_PCT)
+    note[0] = '\0';
+    if (!x->quiet && p2->value < 100.0 - SG_CURVE_END_TOL_PCT)
         fmt_into(note, sizeof note,
-                       "USDA texture triangle on the fraction finer than 2 mm; rock fragments > 2 mm (%.1f %% of "
-                       "the sample by mass) are excluded and no modifier (gravelly ...) is assigned",
-                       100.0 - p2->value);
-    else
-        fmt_into(note, sizeof note, "USDA texture triangle on the fraction finer than 2 mm");
+                 "USDA texture triangle on the fraction finer than 2 mm; rock fragments > 2 mm (%.1f %% of "
+                 "the sample by mass) are excluded and no modifier (gravelly ...) is assigned",
+                 100.0 - p2->value);
+    else if (!x->quiet)
+        join(note, sizeof note, "USDA texture triangle on the fraction finer than 2 mm", (const char *)NULL);
     return add_text(x, "usda_texture", cls, note);
 }
 
@@ -448,20 +549,21 @@ static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options
 {
     if (opt == NULL || opt->extra_dx == NULL)
         return SG_OK;
+    char why[MSG_MAX];
     for (size_t i = 0; i < opt->n_extra_dx; i++) {
         const double p = opt->extra_dx[i];
         if (!isfinite(p))
             continue;
         char label[24], name[SG_QNAME_MAX];
         dx_label(p, label, sizeof label);
-        fmt_into(name, sizeof name, "d%s_mm", label);
+        join(name, sizeof name, "d", label, "_mm", (const char *)NULL);
         if (sg_result_quantity(x->res, name) != NULL)
             continue;
         enum sg_status st;
         if (p <= 0.0 || p > 100.0)
             st = add_undet(x, name, "mm", "not determined: %g %% is not a percentage in (0, 100]", p);
         else
-            st = add_dx(x, p, NULL);
+            st = add_dx(x, p, name, NULL, NULL, why);
         if (st != SG_OK)
             return st;
     }
@@ -471,12 +573,8 @@ static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options
 /* ASTM D2487 grading word and group symbol (coarse-grained soils). */
 static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
 {
-    struct reading p75, p475, p0075;
+    const struct reading p75 = at(x, B_75), p475 = at(x, B_4_75), p0075 = at(x, B_0_075);
     enum sg_status st;
-    if ((st = percent_at(x, USCS_GRAVEL_COBBLE_MM, &p75)) != SG_OK ||
-        (st = percent_at(x, USCS_SAND_GRAVEL_MM, &p475)) != SG_OK ||
-        (st = percent_at(x, USCS_FINES_MM, &p0075)) != SG_OK)
-        return st;
     const struct reading *bad = !p75.ok ? &p75 : !p475.ok ? &p475 : !p0075.ok ? &p0075 : NULL;
     if (bad != NULL) {
         if ((st = add_undet(x, "uscs_grading", "", "not determined (needs P at 75, 4.75, 0.075 mm): %s",
@@ -495,15 +593,19 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     const bool is_gravel = gravel > sand;
     const char *kind = is_gravel ? "gravel" : "sand";
     char basis[120];
-    fmt_into(basis, sizeof basis, "of the fraction finer than 75 mm: gravel %.1f %%, sand %.1f %%, fines %.1f %%",
-                   gravel, sand, fines);
+    basis[0] = '\0';
+    if (!x->quiet)
+        fmt_into(basis, sizeof basis, "of the fraction finer than 75 mm: gravel %.1f %%, sand %.1f %%, fines %.1f %%",
+                 gravel, sand, fines);
     char note[SG_QNOTE_MAX];
+    note[0] = '\0';
 
     if (fines >= USCS_FINE_GRAINED_MIN_PCT) {
-        fmt_into(note, sizeof note,
-                       "ASTM D2487 fine-grained soil (fines %.1f %% >= 50 %%): grading terms apply to "
-                       "coarse-grained soils",
-                       fines);
+        if (!x->quiet)
+            fmt_into(note, sizeof note,
+                     "ASTM D2487 fine-grained soil (fines %.1f %% >= 50 %%): grading terms apply to "
+                     "coarse-grained soils",
+                     fines);
         if ((st = add_text(x, "uscs_grading", "not applicable, fine-grained", note)) != SG_OK)
             return st;
         return add_undet(x, "uscs_group", "",
@@ -512,10 +614,11 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                          fines);
     }
     if (fines > USCS_DUAL_MAX_PCT) {
-        fmt_into(note, sizeof note,
-                       "ASTM D2487: with fines over 12 %% (%s) the soil is named by the plasticity of its "
-                       "fines, not by its grading",
-                       basis);
+        if (!x->quiet)
+            fmt_into(note, sizeof note,
+                     "ASTM D2487: with fines over 12 %% (%s) the soil is named by the plasticity of its "
+                     "fines, not by its grading",
+                     basis);
         if ((st = add_text(x, "uscs_grading", "not applicable, fines over 12 %", note)) != SG_OK)
             return st;
         return add_undet(x, "uscs_group", "", "%s with fines over 12 %% (%s): %s needs the Atterberg limits",
@@ -528,13 +631,15 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
         return add_undet(x, "uscs_group", "", "not determined: Cu and Cc are needed (%s)", basis);
     }
     const bool well = sg_classify_uscs_well_graded(is_gravel, cu, cc);
-    fmt_into(note, sizeof note, "ASTM D2487 %s (%s): %s needs Cu >= %g and 1 <= Cc <= 3; Cu %.2f, Cc %.2f",
-                   kind, basis, is_gravel ? "GW" : "SW", is_gravel ? USCS_GW_CU_MIN : USCS_SW_CU_MIN, cu, cc);
+    if (!x->quiet)
+        fmt_into(note, sizeof note, "ASTM D2487 %s (%s): %s needs Cu >= %g and 1 <= Cc <= 3; Cu %.2f, Cc %.2f",
+                 kind, basis, is_gravel ? "GW" : "SW", is_gravel ? USCS_GW_CU_MIN : USCS_SW_CU_MIN, cu, cc);
     if ((st = add_text(x, "uscs_grading", well ? "well graded" : "poorly graded", note)) != SG_OK)
         return st;
     const char *sym = is_gravel ? (well ? "GW" : "GP") : (well ? "SW" : "SP");
     if (fines < USCS_CLEAN_MAX_PCT) {
-        fmt_into(note, sizeof note, "ASTM D2487 coarse-grained, fines %.1f %% < 5 %% (%s)", fines, basis);
+        if (!x->quiet)
+            fmt_into(note, sizeof note, "ASTM D2487 coarse-grained, fines %.1f %% < 5 %% (%s)", fines, basis);
         return add_text(x, "uscs_group", sym, note);
     }
     return add_undet(x, "uscs_group", "",
@@ -548,33 +653,36 @@ static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
     if (!isfinite(cu) || !isfinite(cc))
         return add_undet(x, "iso_grading", "", "not determined: Cu and Cc are needed (D10, D30 and D60)");
     const char *term = sg_classify_iso_grading(cu, cc);
-    char note[SG_QNOTE_MAX];
     if (term == NULL)
         return add_undet(x, "iso_grading", "",
                          "no ISO 14688-2 term fits Cu %.2f, Cc %.2f (multi-graded needs Cu > 15 and 1 < Cc < 3; "
                          "gap-graded Cc < 0.5)",
                          cu, cc);
-    fmt_into(note, sizeof note,
-                   "ISO 14688-2 from Cu %.2f and Cc %.2f (limits from memory: multi Cu > 15 and 1 < Cc < 3, "
-                   "medium 6-15, even < 6, gap Cc < 0.5)",
-                   cu, cc);
+    char note[SG_QNOTE_MAX];
+    note[0] = '\0';
+    if (!x->quiet)
+        fmt_into(note, sizeof note,
+                 "ISO 14688-2 from Cu %.2f and Cc %.2f (limits from memory: multi Cu > 15 and 1 < Cc < 3, "
+                 "medium 6-15, even < 6, gap Cc < 0.5)",
+                 cu, cc);
     return add_text(x, "iso_grading", term, note);
 }
 
 /* ---- junction gap ------------------------------------------------------ */
 
+/* A sedimentation point; ordered by size, then input line (the order the
+ * rules below speak of: "the two coarsest" and so on). */
 struct sed_point {
     double d_mm;
     double percent;
     unsigned line;
 };
 
-static int sed_by_size(const void *a, const void *b)
+static bool sed_before(const struct sed_point *a, const struct sed_point *b)
 {
-    const struct sed_point *x = a, *y = b;
-    if (x->d_mm != y->d_mm)
-        return (x->d_mm > y->d_mm) - (x->d_mm < y->d_mm);
-    return (x->line > y->line) - (x->line < y->line);
+    if (a->d_mm != b->d_mm)
+        return a->d_mm < b->d_mm;
+    return a->line < b->line;
 }
 
 static bool usable(const struct sg_point *p)
@@ -582,9 +690,50 @@ static bool usable(const struct sg_point *p)
     return isfinite(p->diameter_mm) && p->diameter_mm > 0.0 && isfinite(p->percent_finer);
 }
 
+static bool is_sed(const struct sg_point *p)
+{
+    return p->source == SG_SOURCE_HYDROMETER || p->source == SG_SOURCE_PIPETTE;
+}
+
 static double loglinear(double d, double d0, double p0, double d1, double p1)
 {
     return p0 + (p1 - p0) * (log10(d) - log10(d0)) / (log10(d1) - log10(d0));
+}
+
+/* In the (size, line) order of the usable sedimentation points: the last
+ * one finer than below_mm (below_mm INFINITY: the coarsest of all). Found
+ * by one scan, no sorting. false when there is none. */
+static bool last_finer(const struct sg_result *res, double below_mm, struct sed_point *out)
+{
+    bool found = false;
+    for (size_t i = 0; i < res->n_points; i++) {
+        const struct sg_point *p = &res->points[i];
+        if (!usable(p) || !is_sed(p) || !(p->diameter_mm < below_mm))
+            continue;
+        const struct sed_point s = {p->diameter_mm, p->percent_finer, p->line};
+        if (!found || !sed_before(&s, out)) { /* ties: the later, as a stable sort leaves them */
+            *out = s;
+            found = true;
+        }
+    }
+    return found;
+}
+
+/* The first one not finer than from_mm (strict: coarser than from_mm). */
+static bool first_coarser(const struct sg_result *res, double from_mm, bool strict, struct sed_point *out)
+{
+    bool found = false;
+    for (size_t i = 0; i < res->n_points; i++) {
+        const struct sg_point *p = &res->points[i];
+        if (!usable(p) || !is_sed(p) || (strict ? !(p->diameter_mm > from_mm) : !(p->diameter_mm >= from_mm)))
+            continue;
+        const struct sed_point s = {p->diameter_mm, p->percent_finer, p->line};
+        if (!found || sed_before(&s, out)) { /* ties: the earlier */
+            *out = s;
+            found = true;
+        }
+    }
+    return found;
 }
 
 static enum sg_status add_junction_gap(struct ctx *x)
@@ -598,7 +747,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
         const struct sg_point *p = &res->points[i];
         if (!usable(p))
             continue;
-        if (p->source == SG_SOURCE_HYDROMETER || p->source == SG_SOURCE_PIPETTE) {
+        if (is_sed(p)) {
             n_sed++;
             continue;
         }
@@ -615,66 +764,51 @@ static enum sg_status add_junction_gap(struct ctx *x)
     if (n_sed == 0)
         return add_undet(x, name, "%", "not determined: no sedimentation points");
 
-    struct sed_point *s = malloc(n_sed * sizeof *s);
-    if (s == NULL)
-        return nomem(x);
-    size_t m = 0;
-    for (size_t i = 0; i < res->n_points; i++) {
-        const struct sg_point *p = &res->points[i];
-        if (usable(p) && (p->source == SG_SOURCE_HYDROMETER || p->source == SG_SOURCE_PIPETTE))
-            s[m++] = (struct sed_point){p->diameter_mm, p->percent_finer, p->line};
-    }
-    qsort(s, m, sizeof *s, sed_by_size);
-
-    size_t k = 0; /* first sedimentation point not finer than the aperture */
-    while (k < m && s[k].d_mm < a_mm)
-        k++;
+    /* Around the aperture in the (size, line) order: hi, the first point
+     * not finer than it, and lo, the one just before. */
+    struct sed_point lo, hi;
+    const bool has_lo = last_finer(res, a_mm, &lo);
+    const bool has_hi = first_coarser(res, a_mm, false, &hi);
     double p_sed = NAN;
     char how[160];
-    if (k < m && s[k].d_mm == a_mm) {
-        p_sed = s[k].percent;
-        fmt_into(how, sizeof how, "sedimentation point at that size");
-    } else if (k > 0 && k < m) {
-        p_sed = loglinear(a_mm, s[k - 1].d_mm, s[k - 1].percent, s[k].d_mm, s[k].percent);
-        fmt_into(how, sizeof how, "interpolated log-linearly between sedimentation points at %g and %g mm",
-                       s[k - 1].d_mm, s[k].d_mm);
+    how[0] = '\0';
+    if (has_hi && hi.d_mm == a_mm) {
+        p_sed = hi.percent;
+        if (!x->quiet)
+            join(how, sizeof how, "sedimentation point at that size", (const char *)NULL);
+    } else if (has_lo && has_hi) {
+        p_sed = loglinear(a_mm, lo.d_mm, lo.percent, hi.d_mm, hi.percent);
+        if (!x->quiet)
+            fmt_into(how, sizeof how, "interpolated log-linearly between sedimentation points at %g and %g mm",
+                     lo.d_mm, hi.d_mm);
     } else {
         /* all on one side: the nearest point and the next distinct size beyond it */
-        size_t i0, i1;
-        bool found = false;
-        if (k == m) { /* all finer: the two coarsest */
-            i0 = m - 1;
-            for (i1 = i0; i1-- > 0;)
-                if (s[i1].d_mm < s[i0].d_mm) {
-                    found = true;
-                    break;
-                }
+        struct sed_point s0, s1;
+        bool found;
+        if (!has_hi) { /* all finer: the two coarsest */
+            s0 = lo;
+            found = last_finer(res, s0.d_mm, &s1);
         } else { /* all coarser: the two finest */
-            i0 = 0;
-            for (i1 = 1; i1 < m; i1++)
-                if (s[i1].d_mm > s[i0].d_mm) {
-                    found = true;
-                    break;
-                }
+            s0 = hi;
+            found = first_coarser(res, s0.d_mm, true, &s1);
         }
-        if (!found) {
-            const double d_only = s[0].d_mm;
-            free(s);
+        if (!found)
             return add_undet(x, name, "%",
                              "not determined: sedimentation points at one size only (%g mm), none at the finest "
                              "sieve %g mm",
-                             d_only, a_mm);
-        }
-        p_sed = loglinear(a_mm, s[i0].d_mm, s[i0].percent, s[i1].d_mm, s[i1].percent);
-        fmt_into(how, sizeof how,
-                       "extrapolated log-linearly from the sedimentation points at %g and %g mm (QC indicator "
-                       "only, not a point of the curve)",
-                       s[i1].d_mm, s[i0].d_mm);
+                             s0.d_mm, a_mm);
+        p_sed = loglinear(a_mm, s0.d_mm, s0.percent, s1.d_mm, s1.percent);
+        if (!x->quiet)
+            fmt_into(how, sizeof how,
+                     "extrapolated log-linearly from the sedimentation points at %g and %g mm (QC indicator "
+                     "only, not a point of the curve)",
+                     s1.d_mm, s0.d_mm);
     }
-    free(s);
     char note[SG_QNOTE_MAX];
-    fmt_into(note, sizeof note, "%s %g mm passing %.2f %% minus sedimentation %.2f %% at that size, %s",
-                   a_from_sieve ? "sieve" : "fine sieve", a_mm, p_sieve, p_sed, how);
+    note[0] = '\0';
+    if (!x->quiet)
+        fmt_into(note, sizeof note, "%s %g mm passing %.2f %% minus sedimentation %.2f %% at that size, %s",
+                 a_from_sieve ? "sieve" : "fine sieve", a_mm, p_sieve, p_sed, how);
     return add_value(x, name, "%", p_sieve - p_sed, note);
 }
 
@@ -687,26 +821,37 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     (void)rec;
     if (curve == NULL || res == NULL)
         return sg_error_set(err, SG_EINVAL, 0, 0, "no curve or no result to summarise");
-    struct ctx x = {curve, res, err,
-                    curve->impl != NULL ? "monotone (Steffen)" : "log-linear"};
+    /* fields one by one: the message buffers stay untouched unless used */
+    struct ctx x;
+    x.curve = curve;
+    x.res = res;
+    x.err = err;
+    x.interp_word = curve->impl != NULL ? "monotone (Steffen)" : "log-linear";
+    x.quiet = opt != NULL && opt->values_only;
     enum sg_status st;
 
-    static const double dp[] = {10.0, 15.0, 30.0, 50.0, 60.0, 85.0};
+    static const struct {
+        double p;
+        const char *name, *shown;
+    } dp[] = {{10.0, "d10_mm", "10"}, {15.0, "d15_mm", "15"}, {30.0, "d30_mm", "30"},
+              {50.0, "d50_mm", "50"}, {60.0, "d60_mm", "60"}, {85.0, "d85_mm", "85"}};
     struct reading d[6];
+    char d_why[6][MSG_MAX];
     for (size_t i = 0; i < sizeof dp / sizeof dp[0]; i++)
-        if ((st = add_dx(&x, dp[i], &d[i])) != SG_OK)
+        if ((st = add_dx(&x, dp[i].p, dp[i].name, dp[i].shown, &d[i], d_why[i])) != SG_OK)
             return st;
     double cu, cc;
     if ((st = add_cu_cc(&x, &d[0], &d[2], &d[4], &cu, &cc)) != SG_OK)
         return st;
 
+    if ((st = read_bounds(&x)) != SG_OK)
+        return st;
     struct reading p2;
-    if ((st = add_fraction(&x, "clay_pct", 0.0, ISO_CLAY_SILT_MM, "ISO 14688-1 clay, finer than 0.002 mm")) ||
-        (st = add_fraction(&x, "silt_pct", ISO_CLAY_SILT_MM, ISO_SILT_SAND_MM, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
-        (st = add_fraction(&x, "sand_pct", ISO_SILT_SAND_MM, ISO_SAND_GRAVEL_MM, "ISO 14688-1 sand, 0.063-2 mm")) ||
-        (st = add_fraction(&x, "gravel_pct", ISO_SAND_GRAVEL_MM, ISO_GRAVEL_COBBLE_MM,
-                           "ISO 14688-1 gravel, 2-63 mm")) ||
-        (st = add_fraction(&x, "fines_pct", 0.0, USCS_FINES_MM, "percent finer than 0.075 mm (No. 200)")) ||
+    if ((st = add_fraction(&x, "clay_pct", B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
+        (st = add_fraction(&x, "silt_pct", B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
+        (st = add_fraction(&x, "sand_pct", B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
+        (st = add_fraction(&x, "gravel_pct", B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
+        (st = add_fraction(&x, "fines_pct", B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
         (st = add_usda(&x, &p2)))
         return st;
 
@@ -715,54 +860,50 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
 
     static const struct {
         const char *name;
-        double lower_mm, upper_mm;
+        enum bound lower, upper;
         bool of_fine_earth; /* USDA separates: % of the fraction finer than 2 mm */
         const char *what;
     } fr[] = {
-        {"cobbles_pct", ISO_GRAVEL_COBBLE_MM, ISO_COBBLE_BOULDER_MM, false, "ISO 14688-1 cobbles, 63-200 mm"},
-        {"iso_fine_silt_pct", ISO_CLAY_SILT_MM, ISO_FSI_MSI_MM, false, "ISO 14688-1 fine silt, 0.002-0.0063 mm"},
-        {"iso_medium_silt_pct", ISO_FSI_MSI_MM, ISO_MSI_CSI_MM, false, "ISO 14688-1 medium silt, 0.0063-0.02 mm"},
-        {"iso_coarse_silt_pct", ISO_MSI_CSI_MM, ISO_SILT_SAND_MM, false, "ISO 14688-1 coarse silt, 0.02-0.063 mm"},
-        {"iso_fine_sand_pct", ISO_SILT_SAND_MM, ISO_FSA_MSA_MM, false, "ISO 14688-1 fine sand, 0.063-0.2 mm"},
-        {"iso_medium_sand_pct", ISO_FSA_MSA_MM, ISO_MSA_CSA_MM, false, "ISO 14688-1 medium sand, 0.2-0.63 mm"},
-        {"iso_coarse_sand_pct", ISO_MSA_CSA_MM, ISO_SAND_GRAVEL_MM, false, "ISO 14688-1 coarse sand, 0.63-2 mm"},
-        {"iso_fine_gravel_pct", ISO_SAND_GRAVEL_MM, ISO_FGR_MGR_MM, false, "ISO 14688-1 fine gravel, 2-6.3 mm"},
-        {"iso_medium_gravel_pct", ISO_FGR_MGR_MM, ISO_MGR_CGR_MM, false, "ISO 14688-1 medium gravel, 6.3-20 mm"},
-        {"iso_coarse_gravel_pct", ISO_MGR_CGR_MM, ISO_GRAVEL_COBBLE_MM, false, "ISO 14688-1 coarse gravel, 20-63 mm"},
-        {"uscs_cobbles_pct", USCS_GRAVEL_COBBLE_MM, USCS_COBBLE_BOULDER_MM, false, "ASTM D2487 cobbles, 75-300 mm"},
-        {"uscs_gravel_pct", USCS_SAND_GRAVEL_MM, USCS_GRAVEL_COBBLE_MM, false, "ASTM D2487 gravel, 4.75-75 mm"},
-        {"uscs_coarse_gravel_pct", USCS_FGR_CGR_MM, USCS_GRAVEL_COBBLE_MM, false, "ASTM D2487 coarse gravel, 19-75 mm"},
-        {"uscs_fine_gravel_pct", USCS_SAND_GRAVEL_MM, USCS_FGR_CGR_MM, false, "ASTM D2487 fine gravel, 4.75-19 mm"},
-        {"uscs_sand_pct", USCS_FINES_MM, USCS_SAND_GRAVEL_MM, false, "ASTM D2487 sand, 0.075-4.75 mm"},
-        {"uscs_coarse_sand_pct", USCS_MSA_CSA_MM, USCS_SAND_GRAVEL_MM, false, "ASTM D2487 coarse sand, 2.00-4.75 mm"},
-        {"uscs_medium_sand_pct", USCS_FSA_MSA_MM, USCS_MSA_CSA_MM, false, "ASTM D2487 medium sand, 0.425-2.00 mm"},
-        {"uscs_fine_sand_pct", USCS_FINES_MM, USCS_FSA_MSA_MM, false, "ASTM D2487 fine sand, 0.075-0.425 mm"},
-        {"uscs_fines_pct", 0.0, USCS_FINES_MM, false, "ASTM D2487 fines (silt and clay), finer than 0.075 mm"},
-        {"aashto_gravel_pct", AASHTO_SAND_GRAVEL_MM, AASHTO_GRAVEL_BOULDER_MM, false, "AASHTO M 145 gravel, 2.00-75 mm"},
-        {"aashto_coarse_sand_pct", AASHTO_FSA_CSA_MM, AASHTO_SAND_GRAVEL_MM, false,
-         "AASHTO M 145 coarse sand, 0.425-2.00 mm"},
-        {"aashto_fine_sand_pct", AASHTO_SILT_SAND_MM, AASHTO_FSA_CSA_MM, false,
-         "AASHTO M 145 fine sand, 0.075-0.425 mm"},
-        {"aashto_silt_pct", AASHTO_CLAY_SILT_MM, AASHTO_SILT_SAND_MM, false, "AASHTO M 145 silt, 0.002-0.075 mm"},
-        {"aashto_clay_pct", 0.0, AASHTO_CLAY_SILT_MM, false, "AASHTO M 145 clay, finer than 0.002 mm"},
-        {"usda_very_coarse_sand_pct", USDA_CS_VCS_MM, USDA_FINE_EARTH_MM, true,
+        {"cobbles_pct", B_63, B_200, false, "ISO 14688-1 cobbles, 63-200 mm"},
+        {"iso_fine_silt_pct", B_0_002, B_0_0063, false, "ISO 14688-1 fine silt, 0.002-0.0063 mm"},
+        {"iso_medium_silt_pct", B_0_0063, B_0_02, false, "ISO 14688-1 medium silt, 0.0063-0.02 mm"},
+        {"iso_coarse_silt_pct", B_0_02, B_0_063, false, "ISO 14688-1 coarse silt, 0.02-0.063 mm"},
+        {"iso_fine_sand_pct", B_0_063, B_0_2, false, "ISO 14688-1 fine sand, 0.063-0.2 mm"},
+        {"iso_medium_sand_pct", B_0_2, B_0_63, false, "ISO 14688-1 medium sand, 0.2-0.63 mm"},
+        {"iso_coarse_sand_pct", B_0_63, B_2, false, "ISO 14688-1 coarse sand, 0.63-2 mm"},
+        {"iso_fine_gravel_pct", B_2, B_6_3, false, "ISO 14688-1 fine gravel, 2-6.3 mm"},
+        {"iso_medium_gravel_pct", B_6_3, B_20, false, "ISO 14688-1 medium gravel, 6.3-20 mm"},
+        {"iso_coarse_gravel_pct", B_20, B_63, false, "ISO 14688-1 coarse gravel, 20-63 mm"},
+        {"uscs_cobbles_pct", B_75, B_300, false, "ASTM D2487 cobbles, 75-300 mm"},
+        {"uscs_gravel_pct", B_4_75, B_75, false, "ASTM D2487 gravel, 4.75-75 mm"},
+        {"uscs_coarse_gravel_pct", B_19, B_75, false, "ASTM D2487 coarse gravel, 19-75 mm"},
+        {"uscs_fine_gravel_pct", B_4_75, B_19, false, "ASTM D2487 fine gravel, 4.75-19 mm"},
+        {"uscs_sand_pct", B_0_075, B_4_75, false, "ASTM D2487 sand, 0.075-4.75 mm"},
+        {"uscs_coarse_sand_pct", B_2, B_4_75, false, "ASTM D2487 coarse sand, 2.00-4.75 mm"},
+        {"uscs_medium_sand_pct", B_0_425, B_2, false, "ASTM D2487 medium sand, 0.425-2.00 mm"},
+        {"uscs_fine_sand_pct", B_0_075, B_0_425, false, "ASTM D2487 fine sand, 0.075-0.425 mm"},
+        {"uscs_fines_pct", B_ZERO, B_0_075, false, "ASTM D2487 fines (silt and clay), finer than 0.075 mm"},
+        {"aashto_gravel_pct", B_2, B_75, false, "AASHTO M 145 gravel, 2.00-75 mm"},
+        {"aashto_coarse_sand_pct", B_0_425, B_2, false, "AASHTO M 145 coarse sand, 0.425-2.00 mm"},
+        {"aashto_fine_sand_pct", B_0_075, B_0_425, false, "AASHTO M 145 fine sand, 0.075-0.425 mm"},
+        {"aashto_silt_pct", B_0_002, B_0_075, false, "AASHTO M 145 silt, 0.002-0.075 mm"},
+        {"aashto_clay_pct", B_ZERO, B_0_002, false, "AASHTO M 145 clay, finer than 0.002 mm"},
+        {"usda_very_coarse_sand_pct", B_1, B_2, true,
          "USDA very coarse sand 1-2 mm, % of the fraction finer than 2 mm"},
-        {"usda_coarse_sand_pct", USDA_MS_CS_MM, USDA_CS_VCS_MM, true,
-         "USDA coarse sand 0.5-1 mm, % of the fraction finer than 2 mm"},
-        {"usda_medium_sand_pct", USDA_FS_MS_MM, USDA_MS_CS_MM, true,
+        {"usda_coarse_sand_pct", B_0_5, B_1, true, "USDA coarse sand 0.5-1 mm, % of the fraction finer than 2 mm"},
+        {"usda_medium_sand_pct", B_0_25, B_0_5, true,
          "USDA medium sand 0.25-0.5 mm, % of the fraction finer than 2 mm"},
-        {"usda_fine_sand_pct", USDA_VFS_FS_MM, USDA_FS_MS_MM, true,
-         "USDA fine sand 0.10-0.25 mm, % of the fraction finer than 2 mm"},
-        {"usda_very_fine_sand_pct", USDA_SILT_SAND_MM, USDA_VFS_FS_MM, true,
+        {"usda_fine_sand_pct", B_0_1, B_0_25, true, "USDA fine sand 0.10-0.25 mm, % of the fraction finer than 2 mm"},
+        {"usda_very_fine_sand_pct", B_0_05, B_0_1, true,
          "USDA very fine sand 0.05-0.10 mm, % of the fraction finer than 2 mm"},
-        {"finer_0_02_mm_pct", 0.0, FROST_SIZE_MM, false,
+        {"finer_0_02_mm_pct", B_ZERO, B_0_02, false,
          "percent finer than 0.02 mm, input to frost-susceptibility screens (a screen, not a design value)"},
-        {"passing_2_00_mm_pct", 0.0, AASHTO_SAND_GRAVEL_MM, false, "percent passing 2.00 mm (No. 10)"},
-        {"passing_0_425_mm_pct", 0.0, AASHTO_FSA_CSA_MM, false, "percent passing 0.425 mm (No. 40)"},
-        {"passing_0_075_mm_pct", 0.0, AASHTO_SILT_SAND_MM, false, "percent passing 0.075 mm (No. 200)"},
+        {"passing_2_00_mm_pct", B_ZERO, B_2, false, "percent passing 2.00 mm (No. 10)"},
+        {"passing_0_425_mm_pct", B_ZERO, B_0_425, false, "percent passing 0.425 mm (No. 40)"},
+        {"passing_0_075_mm_pct", B_ZERO, B_0_075, false, "percent passing 0.075 mm (No. 200)"},
     };
     for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++)
-        if ((st = add_fraction_on(&x, fr[i].name, fr[i].lower_mm, fr[i].upper_mm, fr[i].of_fine_earth ? &p2 : NULL,
+        if ((st = add_fraction_on(&x, fr[i].name, fr[i].lower, fr[i].upper, fr[i].of_fine_earth ? &p2 : NULL,
                                   fr[i].what)) != SG_OK)
             return st;
 

@@ -150,7 +150,7 @@ enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const c
 struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *name)
 {
     for (size_t i = 0; i < r->n_quantities; i++)
-        if (strcmp(r->quantities[i].name, name) == 0)
+        if (r->quantities[i].name[0] == name[0] && strcmp(r->quantities[i].name, name) == 0)
             return &r->quantities[i];
     return NULL;
 }
