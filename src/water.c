@@ -40,14 +40,22 @@ double sg_water_viscosity_iapws_pa_s(double temp_k, double density_kg_m3)
 
     const double x = 1.0 / tr - 1.0;
     const double y = rr - 1.0;
+    /* The rows of the table as sums of their non-zero terms, in the
+     * table's order, with (rho_r - 1)^j built by the same products as a
+     * running power: adding the table's exact zeros changes no bit, so the
+     * sum is the full table's. */
+    const double y2 = y * y, y3 = y2 * y, y4 = y3 * y, y5 = y4 * y, y6 = y5 * y;
+    const double inner[6] = {
+        h1[0][0] + h1[0][1] * y + h1[0][2] * y2 + h1[0][3] * y3 + h1[0][4] * y4,
+        h1[1][0] + h1[1][1] * y + h1[1][2] * y2 + h1[1][3] * y3,
+        h1[2][0] + h1[2][1] * y + h1[2][2] * y2,
+        h1[3][0] + h1[3][1] * y + h1[3][2] * y2 + h1[3][4] * y4 + h1[3][6] * y6,
+        h1[4][2] * y2 + h1[4][5] * y5,
+        h1[5][1] * y + h1[5][6] * y6,
+    };
     double s1 = 0.0, xi = 1.0;
     for (int i = 0; i < 6; i++) {
-        double inner = 0.0, yj = 1.0;
-        for (int j = 0; j < 7; j++) {
-            inner += h1[i][j] * yj;
-            yj *= y;
-        }
-        s1 += xi * inner;
+        s1 += xi * inner[i];
         xi *= x;
     }
     const double mu1 = exp(rr * s1);
