@@ -40,7 +40,21 @@ void sg_constants_from_record(const struct sg_record *rec, struct sg_constants *
         k->has_pipette_volume = true;
         k->pipette_volume_ml = rec->pipette_volume_ml;
     }
-    (void)snprintf(k->calibration_used, sizeof k->calibration_used, "inline");
+    memcpy(k->calibration_used, "inline", sizeof "inline");
+}
+
+/* Sieve rows reduced without a heap allocation (a record has a dozen). */
+#define SIEVE_LINES_ON_STACK 64
+
+/* Copies src into dst of size n (n > 0), cut at n - 1 bytes like
+ * snprintf(dst, n, "%s", src), without going through printf. */
+static void copy_text(char *dst, size_t n, const char *src)
+{
+    size_t len = strlen(src);
+    if (len > n - 1)
+        len = n - 1;
+    memcpy(dst, src, len);
+    dst[len] = '\0';
 }
 
 /* Locates err at pos (the message was written without a location). */
@@ -59,23 +73,28 @@ static enum sg_status add_sieve_points(const struct sg_sieve_row *rows, size_t n
 {
     if (n == 0)
         return SG_OK;
-    struct sg_sieve_line *lines = malloc(n * sizeof *lines);
+    struct sg_sieve_line local[SIEVE_LINES_ON_STACK];
+    struct sg_sieve_line *lines = n <= SIEVE_LINES_ON_STACK ? local : malloc(n * sizeof *lines);
     if (lines == NULL)
         return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory reducing %zu sieve rows", n);
     enum sg_status st = sg_sieve_reduce(rows, n, mass_g, lines, err);
     for (size_t i = 0; st == SG_OK && i < n; i++) {
         if (lines[i].aperture_mm <= SG_SIEVE_PAN_MM)
             continue;
-        struct sg_point p = sg_point_blank(src, lines[i].line);
-        p.diameter_mm = lines[i].aperture_mm;
-        p.retained_g = lines[i].retained_g;
-        p.cumulative_retained_g = lines[i].cumulative_retained_g;
-        p.percent_specimen = lines[i].percent_passing;
-        p.percent_finer = lines[i].percent_passing * scale_pct / 100.0;
-        p.on_curve = true;
-        st = sg_result_add_point(res, &p);
+        struct sg_point *p = sg_result_new_point(res, src, lines[i].line);
+        if (p == NULL) {
+            st = SG_ENOMEM;
+            break;
+        }
+        p->diameter_mm = lines[i].aperture_mm;
+        p->retained_g = lines[i].retained_g;
+        p->cumulative_retained_g = lines[i].cumulative_retained_g;
+        p->percent_specimen = lines[i].percent_passing;
+        p->percent_finer = lines[i].percent_passing * scale_pct / 100.0;
+        p->on_curve = true;
     }
-    free(lines);
+    if (lines != local)
+        free(lines);
     return st;
 }
 
@@ -144,24 +163,24 @@ static enum sg_status add_hydrometer_points(const struct sg_record *rec, const s
         st = sg_hydrometer_reduce(&in, &hp, err);
         if (st != SG_OK)
             return locate(err, st, r->pos);
-        struct sg_point p = sg_point_blank(SG_SOURCE_HYDROMETER, r->pos.line);
-        p.elapsed_min = r->elapsed_min;
-        p.temp_c = temp_c;
-        p.reading = r->reading;
-        p.blank_reading = in.blank_reading;
-        p.corrected_reading = hp.corrected_reading;
-        p.depth_reading = hp.depth_reading;
-        p.effective_depth_mm = hp.effective_depth_mm;
-        p.concentration_g_l = hp.concentration_g_l;
-        p.water_density_kg_m3 = hp.water_density_kg_m3;
-        p.viscosity_mpa_s = hp.viscosity_pa_s * 1000.0;
-        p.reynolds = hp.reynolds;
-        p.diameter_mm = hp.diameter_mm;
-        p.percent_specimen = hp.percent_specimen;
-        p.percent_finer = hp.percent_specimen * scale_pct / 100.0;
-        p.on_curve = true;
-        if ((st = sg_result_add_point(res, &p)) != SG_OK)
-            return sg_error_set(err, st, 0, 0, "out of memory");
+        struct sg_point *p = sg_result_new_point(res, SG_SOURCE_HYDROMETER, r->pos.line);
+        if (p == NULL)
+            return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+        p->elapsed_min = r->elapsed_min;
+        p->temp_c = temp_c;
+        p->reading = r->reading;
+        p->blank_reading = in.blank_reading;
+        p->corrected_reading = hp.corrected_reading;
+        p->depth_reading = hp.depth_reading;
+        p->effective_depth_mm = hp.effective_depth_mm;
+        p->concentration_g_l = hp.concentration_g_l;
+        p->water_density_kg_m3 = hp.water_density_kg_m3;
+        p->viscosity_mpa_s = hp.viscosity_pa_s * 1000.0;
+        p->reynolds = hp.reynolds;
+        p->diameter_mm = hp.diameter_mm;
+        p->percent_specimen = hp.percent_specimen;
+        p->percent_finer = hp.percent_specimen * scale_pct / 100.0;
+        p->on_curve = true;
     }
     if (n_missing > 0 &&
         sg_result_add_flag(res, "no_blank", SG_SEVERITY_WARNING, rec->readings[0].pos.line,
@@ -204,21 +223,21 @@ static enum sg_status add_pipette_points(const struct sg_record *rec, const stru
                                     "solids was not subtracted (give 0 if none was used)");
         if (st != SG_OK)
             return locate(err, st, r->pos);
-        struct sg_point p = sg_point_blank(SG_SOURCE_PIPETTE, r->pos.line);
-        p.elapsed_min = r->elapsed_min;
-        p.temp_c = temp_c;
-        p.effective_depth_mm = r->depth_mm;
-        p.solids_g = r->solids_g;
-        p.net_solids_g = pp.net_solids_g;
-        p.water_density_kg_m3 = pp.water_density_kg_m3;
-        p.viscosity_mpa_s = pp.viscosity_pa_s * 1000.0;
-        p.reynolds = pp.reynolds;
-        p.diameter_mm = pp.diameter_mm;
-        p.percent_specimen = pp.percent_specimen;
-        p.percent_finer = pp.percent_specimen * scale_pct / 100.0;
-        p.on_curve = true;
-        if ((st = sg_result_add_point(res, &p)) != SG_OK)
-            return sg_error_set(err, st, 0, 0, "out of memory");
+        struct sg_point *p = sg_result_new_point(res, SG_SOURCE_PIPETTE, r->pos.line);
+        if (p == NULL)
+            return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+        p->elapsed_min = r->elapsed_min;
+        p->temp_c = temp_c;
+        p->effective_depth_mm = r->depth_mm;
+        p->solids_g = r->solids_g;
+        p->net_solids_g = pp.net_solids_g;
+        p->water_density_kg_m3 = pp.water_density_kg_m3;
+        p->viscosity_mpa_s = pp.viscosity_pa_s * 1000.0;
+        p->reynolds = pp.reynolds;
+        p->diameter_mm = pp.diameter_mm;
+        p->percent_specimen = pp.percent_specimen;
+        p->percent_finer = pp.percent_specimen * scale_pct / 100.0;
+        p->on_curve = true;
     }
     return SG_OK;
 }
@@ -288,9 +307,9 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
     }
     sg_error_clear(err);
     sg_result_clear(res);
-    (void)snprintf(res->id, sizeof res->id, "%s", rec->id);
-    (void)snprintf(res->calibration_used, sizeof res->calibration_used, "%s",
-                   k->calibration_used[0] ? k->calibration_used : "inline");
+    copy_text(res->id, sizeof res->id, rec->id);
+    copy_text(res->calibration_used, sizeof res->calibration_used,
+              k->calibration_used[0] ? k->calibration_used : "inline");
 
     enum sg_status st = sg_record_validate(rec, NULL, err);
     if (st != SG_OK)

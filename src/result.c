@@ -40,11 +40,14 @@ void sg_result_clear(struct sg_result *r)
  * snprintf(dst, n, "%s", src), without going through printf. */
 static void copy_text(char *dst, size_t n, const char *src)
 {
-    size_t len = src != NULL ? strlen(src) : 0;
+    if (src == NULL || src[0] == '\0') { /* units and notes often are (values-only summaries) */
+        dst[0] = '\0';
+        return;
+    }
+    size_t len = strlen(src);
     if (len > n - 1)
         len = n - 1;
-    if (len > 0)
-        memcpy(dst, src, len);
+    memcpy(dst, src, len);
     dst[len] = '\0';
 }
 
@@ -155,19 +158,40 @@ struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *na
     return NULL;
 }
 
+/* Every field of *p, one store each (no memset and no struct copy: a copy
+ * read back right after narrower stores stalls on store forwarding). */
+static void blank_into(struct sg_point *p, enum sg_source source, unsigned line)
+{
+    p->source = source;
+    p->line = line;
+    p->diameter_mm = p->percent_finer = p->percent_specimen = NAN;
+    p->retained_g = p->cumulative_retained_g = NAN;
+    p->elapsed_min = p->temp_c = p->reading = p->blank_reading = p->corrected_reading = NAN;
+    p->depth_reading = p->effective_depth_mm = p->concentration_g_l = NAN;
+    p->solids_g = p->net_solids_g = NAN;
+    p->water_density_kg_m3 = p->viscosity_mpa_s = p->reynolds = NAN;
+    p->percent_finer_u = NAN;
+    p->flags = 0;
+    p->on_curve = false;
+}
+
 struct sg_point sg_point_blank(enum sg_source source, unsigned line)
 {
     struct sg_point p;
     memset(&p, 0, sizeof p);
-    p.source = source;
-    p.line = line;
-    p.diameter_mm = p.percent_finer = p.percent_specimen = NAN;
-    p.retained_g = p.cumulative_retained_g = NAN;
-    p.elapsed_min = p.temp_c = p.reading = p.blank_reading = p.corrected_reading = NAN;
-    p.depth_reading = p.effective_depth_mm = p.concentration_g_l = NAN;
-    p.solids_g = p.net_solids_g = NAN;
-    p.water_density_kg_m3 = p.viscosity_mpa_s = p.reynolds = NAN;
-    p.percent_finer_u = NAN;
+    blank_into(&p, source, line);
+    return p;
+}
+
+struct sg_point *sg_result_new_point(struct sg_result *r, enum sg_source source, unsigned line)
+{
+    void *items = r->points;
+    enum sg_status st = grow(&items, r->n_points, &r->cap_points, sizeof *r->points);
+    r->points = items;
+    if (st != SG_OK)
+        return NULL;
+    struct sg_point *p = &r->points[r->n_points++];
+    blank_into(p, source, line);
     return p;
 }
 

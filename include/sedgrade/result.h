@@ -114,6 +114,11 @@ struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *na
 /* A point initialised with NaN in every numeric field that may not apply. */
 struct sg_point sg_point_blank(enum sg_source source, unsigned line);
 
+/* Appends sg_point_blank(source, line) and returns it, to be filled in
+ * place (no copy of the whole point); NULL when out of memory. The pointer
+ * is valid until the next point is added. */
+struct sg_point *sg_result_new_point(struct sg_result *r, enum sg_source source, unsigned line);
+
 /* Worst severity among the flags (SG_SEVERITY_INFO when none). */
 enum sg_severity sg_result_worst(const struct sg_result *r);
 
