@@ -189,7 +189,8 @@ const char *sg_classify_iso_grading(double cu, double cc)
 /* ---- summary ----------------------------------------------------------- */
 
 /* The sizes at which the summary reads the curve, each read once per
- * summary (many fractions share a boundary). log10 of each is written out
+ * summary (many fractions share a boundary), in increasing order. log10 of
+ * each is written out
  * so that no logarithm is taken per reading: the correctly rounded values
  * (checked against 60-digit decimal arithmetic), which are also what the C
  * library's log10() returns for these sizes. */
@@ -200,31 +201,53 @@ enum bound {
     B_ZERO = N_BOUNDS /* lower size 0: "finer than" the upper size */
 };
 
-static const struct {
-    double d_mm, log10_d;
-} bounds[N_BOUNDS] = {
-    [B_0_002] = {ISO_CLAY_SILT_MM, -2.6989700043360187},      /* = AASHTO, USDA clay/silt */
-    [B_0_0063] = {ISO_FSI_MSI_MM, -2.2006594505464183},
-    [B_0_02] = {ISO_MSI_CSI_MM, -1.6989700043360187},         /* = FROST_SIZE_MM */
-    [B_0_05] = {USDA_SILT_SAND_MM, -1.3010299956639813},
-    [B_0_063] = {ISO_SILT_SAND_MM, -1.2006594505464183},
-    [B_0_075] = {USCS_FINES_MM, -1.1249387366083},            /* = AASHTO_SILT_SAND_MM */
-    [B_0_1] = {USDA_VFS_FS_MM, -1.0},
-    [B_0_2] = {ISO_FSA_MSA_MM, -0.6989700043360187},
-    [B_0_25] = {USDA_FS_MS_MM, -0.6020599913279624},
-    [B_0_425] = {USCS_FSA_MSA_MM, -0.37161106994968846},      /* = AASHTO_FSA_CSA_MM */
-    [B_0_5] = {USDA_MS_CS_MM, -0.3010299956639812},
-    [B_0_63] = {ISO_MSA_CSA_MM, -0.2006594505464183},
-    [B_1] = {USDA_CS_VCS_MM, 0.0},
-    [B_2] = {ISO_SAND_GRAVEL_MM, 0.3010299956639812},         /* = USCS, AASHTO, USDA 2 mm */
-    [B_4_75] = {USCS_SAND_GRAVEL_MM, 0.6766936096248666},
-    [B_6_3] = {ISO_FGR_MGR_MM, 0.7993405494535817},
-    [B_19] = {USCS_FGR_CGR_MM, 1.2787536009528289},
-    [B_20] = {ISO_MGR_CGR_MM, 1.3010299956639813},
-    [B_63] = {ISO_GRAVEL_COBBLE_MM, 1.7993405494535817},
-    [B_75] = {USCS_GRAVEL_COBBLE_MM, 1.8750612633917},         /* = AASHTO_GRAVEL_BOULDER_MM */
-    [B_200] = {ISO_COBBLE_BOULDER_MM, 2.3010299956639813},
-    [B_300] = {USCS_COBBLE_BOULDER_MM, 2.4771212547196626},
+static const double bound_mm[N_BOUNDS] = {
+    [B_0_002] = ISO_CLAY_SILT_MM, /* = AASHTO, USDA clay/silt */
+    [B_0_0063] = ISO_FSI_MSI_MM,
+    [B_0_02] = ISO_MSI_CSI_MM, /* = FROST_SIZE_MM */
+    [B_0_05] = USDA_SILT_SAND_MM,
+    [B_0_063] = ISO_SILT_SAND_MM,
+    [B_0_075] = USCS_FINES_MM, /* = AASHTO_SILT_SAND_MM */
+    [B_0_1] = USDA_VFS_FS_MM,
+    [B_0_2] = ISO_FSA_MSA_MM,
+    [B_0_25] = USDA_FS_MS_MM,
+    [B_0_425] = USCS_FSA_MSA_MM, /* = AASHTO_FSA_CSA_MM */
+    [B_0_5] = USDA_MS_CS_MM,
+    [B_0_63] = ISO_MSA_CSA_MM,
+    [B_1] = USDA_CS_VCS_MM,
+    [B_2] = ISO_SAND_GRAVEL_MM, /* = USCS, AASHTO, USDA 2 mm */
+    [B_4_75] = USCS_SAND_GRAVEL_MM,
+    [B_6_3] = ISO_FGR_MGR_MM,
+    [B_19] = USCS_FGR_CGR_MM,
+    [B_20] = ISO_MGR_CGR_MM,
+    [B_63] = ISO_GRAVEL_COBBLE_MM,
+    [B_75] = USCS_GRAVEL_COBBLE_MM, /* = AASHTO_GRAVEL_BOULDER_MM */
+    [B_200] = ISO_COBBLE_BOULDER_MM,
+    [B_300] = USCS_COBBLE_BOULDER_MM,
+};
+static const double bound_log10[N_BOUNDS] = {
+    [B_0_002] = -2.6989700043360187,
+    [B_0_0063] = -2.2006594505464183,
+    [B_0_02] = -1.6989700043360187,
+    [B_0_05] = -1.3010299956639813,
+    [B_0_063] = -1.2006594505464183,
+    [B_0_075] = -1.1249387366083,
+    [B_0_1] = -1.0,
+    [B_0_2] = -0.6989700043360187,
+    [B_0_25] = -0.6020599913279624,
+    [B_0_425] = -0.37161106994968846,
+    [B_0_5] = -0.3010299956639812,
+    [B_0_63] = -0.2006594505464183,
+    [B_1] = 0.0,
+    [B_2] = 0.3010299956639812,
+    [B_4_75] = 0.6766936096248666,
+    [B_6_3] = 0.7993405494535817,
+    [B_19] = 1.2787536009528289,
+    [B_20] = 1.3010299956639813,
+    [B_63] = 1.7993405494535817,
+    [B_75] = 1.8750612633917,
+    [B_200] = 2.3010299956639813,
+    [B_300] = 2.4771212547196626,
 };
 
 #define MSG_MAX sizeof ((struct sg_error *)0)->msg
@@ -289,20 +312,24 @@ static void copy_msg(char *dst, const char *src)
     memcpy(dst, src, strlen(src) + 1);
 }
 
-/* Reads the curve at every bound, in one go. ENOMEM is the only status
- * passed on; anything else is kept as the reason for that bound. */
+/* Reads the curve at every bound, in one walk (the bounds are in order).
+ * ENOMEM is the only status passed on; anything else is kept as the reason
+ * for that bound. */
 static enum sg_status read_bounds(struct ctx *x)
 {
+    sg_curve_percent_at_sorted(x->curve, bound_mm, bound_log10, N_BOUNDS, x->p, x->pst);
     for (size_t b = 0; b < N_BOUNDS; b++) {
-        struct sg_error e;
-        x->p[b] = NAN;
-        const enum sg_status st = sg_curve_percent_at_log10(x->curve, bounds[b].d_mm, bounds[b].log10_d, &x->p[b],
-                                                            x->quiet ? NULL : &e);
-        x->pst[b] = st;
-        if (st == SG_ENOMEM)
-            return x->quiet ? nomem(x) : sg_error_set(x->err, SG_ENOMEM, 0, 0, "%s", e.msg);
-        if (st != SG_OK && !x->quiet)
+        if (x->pst[b] == SG_OK)
+            continue;
+        if (x->pst[b] == SG_ENOMEM)
+            return nomem(x);
+        if (!x->quiet) { /* the message, from the single-size reading */
+            struct sg_error e;
+            double v = NAN;
+            sg_error_clear(&e);
+            (void)sg_curve_percent_at_log10(x->curve, bound_mm[b], bound_log10[b], &v, &e);
             copy_msg(x->why[b], e.msg);
+        }
     }
     return SG_OK;
 }
@@ -700,40 +727,43 @@ static double loglinear(double d, double d0, double p0, double d1, double p1)
     return p0 + (p1 - p0) * (log10(d) - log10(d0)) / (log10(d1) - log10(d0));
 }
 
-/* In the (size, line) order of the usable sedimentation points: the last
- * one finer than below_mm (below_mm INFINITY: the coarsest of all). Found
- * by one scan, no sorting. false when there is none. */
-static bool last_finer(const struct sg_result *res, double below_mm, struct sed_point *out)
-{
-    bool found = false;
-    for (size_t i = 0; i < res->n_points; i++) {
-        const struct sg_point *p = &res->points[i];
-        if (!usable(p) || !is_sed(p) || !(p->diameter_mm < below_mm))
-            continue;
-        const struct sed_point s = {p->diameter_mm, p->percent_finer, p->line};
-        if (!found || !sed_before(&s, out)) { /* ties: the later, as a stable sort leaves them */
-            *out = s;
-            found = true;
-        }
-    }
-    return found;
-}
+/* The sedimentation points around a size a, in their (size, line) order:
+ * lo1, the last one finer than a, and lo2, the last one finer than lo1's
+ * size (the next size down); hi1, the first one not finer than a, and
+ * hi2, the first one coarser than hi1's size. One scan, no sorting: each
+ * point only moves these four along the order. */
+struct around {
+    bool has_lo1, has_lo2, has_hi1, has_hi2;
+    struct sed_point lo1, lo2, hi1, hi2;
+};
 
-/* The first one not finer than from_mm (strict: coarser than from_mm). */
-static bool first_coarser(const struct sg_result *res, double from_mm, bool strict, struct sed_point *out)
+static void around_add(struct around *a, double a_mm, const struct sed_point *s)
 {
-    bool found = false;
-    for (size_t i = 0; i < res->n_points; i++) {
-        const struct sg_point *p = &res->points[i];
-        if (!usable(p) || !is_sed(p) || (strict ? !(p->diameter_mm > from_mm) : !(p->diameter_mm >= from_mm)))
-            continue;
-        const struct sed_point s = {p->diameter_mm, p->percent_finer, p->line};
-        if (!found || sed_before(&s, out)) { /* ties: the earlier */
-            *out = s;
-            found = true;
+    if (s->d_mm < a_mm) {
+        if (!a->has_lo1 || !sed_before(s, &a->lo1)) { /* s is the new last (ties: the later) */
+            if (a->has_lo1 && a->lo1.d_mm < s->d_mm) {
+                a->lo2 = a->lo1; /* the last of all before s, all finer than s */
+                a->has_lo2 = true;
+            }
+            a->lo1 = *s;
+            a->has_lo1 = true;
+        } else if (s->d_mm < a->lo1.d_mm && (!a->has_lo2 || !sed_before(s, &a->lo2))) {
+            a->lo2 = *s;
+            a->has_lo2 = true;
+        }
+    } else {
+        if (!a->has_hi1 || sed_before(s, &a->hi1)) { /* s is the new first (ties: the earlier) */
+            if (a->has_hi1 && a->hi1.d_mm > s->d_mm) {
+                a->hi2 = a->hi1;
+                a->has_hi2 = true;
+            }
+            a->hi1 = *s;
+            a->has_hi1 = true;
+        } else if (s->d_mm > a->hi1.d_mm && (!a->has_hi2 || sed_before(s, &a->hi2))) {
+            a->hi2 = *s;
+            a->has_hi2 = true;
         }
     }
-    return found;
 }
 
 static enum sg_status add_junction_gap(struct ctx *x)
@@ -764,35 +794,32 @@ static enum sg_status add_junction_gap(struct ctx *x)
     if (n_sed == 0)
         return add_undet(x, name, "%", "not determined: no sedimentation points");
 
-    /* Around the aperture in the (size, line) order: hi, the first point
-     * not finer than it, and lo, the one just before. */
-    struct sed_point lo, hi;
-    const bool has_lo = last_finer(res, a_mm, &lo);
-    const bool has_hi = first_coarser(res, a_mm, false, &hi);
+    struct around ar;
+    memset(&ar, 0, sizeof ar);
+    for (size_t i = 0; i < res->n_points; i++) {
+        const struct sg_point *p = &res->points[i];
+        if (usable(p) && is_sed(p)) {
+            const struct sed_point s = {p->diameter_mm, p->percent_finer, p->line};
+            around_add(&ar, a_mm, &s);
+        }
+    }
     double p_sed = NAN;
     char how[160];
     how[0] = '\0';
-    if (has_hi && hi.d_mm == a_mm) {
-        p_sed = hi.percent;
+    if (ar.has_hi1 && ar.hi1.d_mm == a_mm) {
+        p_sed = ar.hi1.percent;
         if (!x->quiet)
             join(how, sizeof how, "sedimentation point at that size", (const char *)NULL);
-    } else if (has_lo && has_hi) {
-        p_sed = loglinear(a_mm, lo.d_mm, lo.percent, hi.d_mm, hi.percent);
+    } else if (ar.has_lo1 && ar.has_hi1) {
+        p_sed = loglinear(a_mm, ar.lo1.d_mm, ar.lo1.percent, ar.hi1.d_mm, ar.hi1.percent);
         if (!x->quiet)
             fmt_into(how, sizeof how, "interpolated log-linearly between sedimentation points at %g and %g mm",
-                     lo.d_mm, hi.d_mm);
+                     ar.lo1.d_mm, ar.hi1.d_mm);
     } else {
         /* all on one side: the nearest point and the next distinct size beyond it */
-        struct sed_point s0, s1;
-        bool found;
-        if (!has_hi) { /* all finer: the two coarsest */
-            s0 = lo;
-            found = last_finer(res, s0.d_mm, &s1);
-        } else { /* all coarser: the two finest */
-            s0 = hi;
-            found = first_coarser(res, s0.d_mm, true, &s1);
-        }
-        if (!found)
+        const bool all_finer = !ar.has_hi1; /* the two coarsest; else the two finest */
+        const struct sed_point s0 = all_finer ? ar.lo1 : ar.hi1, s1 = all_finer ? ar.lo2 : ar.hi2;
+        if (!(all_finer ? ar.has_lo2 : ar.has_hi2))
             return add_undet(x, name, "%",
                              "not determined: sedimentation points at one size only (%g mm), none at the finest "
                              "sieve %g mm",

@@ -308,6 +308,45 @@ enum sg_status sg_curve_percent_at_log10(const struct sg_curve *c, double d_mm, 
     return SG_OK;
 }
 
+void sg_curve_percent_at_sorted(const struct sg_curve *c, const double *d_mm, const double *log10_d_mm, size_t m,
+                                double *percent, enum sg_status *st)
+{
+    if (c == NULL || c->n < 2 || c->log10_d == NULL || c->percent == NULL || c->impl != NULL) {
+        for (size_t i = 0; i < m; i++) {
+            percent[i] = NAN;
+            st[i] = sg_curve_percent_at_log10(c, d_mm[i], log10_d_mm[i], &percent[i], NULL);
+        }
+        return;
+    }
+    /* log-linear: one walk along the segments, the sizes being in order */
+    const size_t last = c->n - 1;
+    size_t seg = 1; /* first node coarser than x (segment_of), never moving back */
+    for (size_t i = 0; i < m; i++) {
+        percent[i] = NAN;
+        const double d = d_mm[i];
+        if (!isfinite(d) || d <= 0.0) {
+            st[i] = SG_EINVAL;
+            continue;
+        }
+        double x = log10_d_mm[i];
+        if (!within_range(&x, c->log10_d[0], c->log10_d[last])) {
+            /* the end rules of sg_curve_percent_at_log10 */
+            if (x > c->log10_d[last] ? fabs(c->percent[last] - 100.0) <= SG_CURVE_END_TOL_PCT
+                                     : fabs(c->percent[0]) <= SG_CURVE_END_TOL_PCT) {
+                percent[i] = x > c->log10_d[last] ? 100.0 : 0.0;
+                st[i] = SG_OK;
+            } else {
+                st[i] = SG_EDOM;
+            }
+            continue;
+        }
+        while (seg < last && c->log10_d[seg] <= x)
+            seg++;
+        percent[i] = loglinear_percent(c, seg, x);
+        st[i] = SG_OK;
+    }
+}
+
 struct root_params {
     const struct sg_curve *c;
     double target;

@@ -96,6 +96,14 @@ enum sg_status sg_curve_percent_at(const struct sg_curve *c, double d_mm, double
 enum sg_status sg_curve_percent_at_log10(const struct sg_curve *c, double d_mm, double log10_d_mm,
                                          double *percent, struct sg_error *err);
 
+/* Percent finer at m sizes given in increasing order, each with its
+ * log10 as for sg_curve_percent_at_log10, in one walk along the curve:
+ * percent[i] and st[i] are what sg_curve_percent_at_log10 would give
+ * (percent NaN where st is not SG_OK), without messages (ask that function
+ * for the message of a size that failed). */
+void sg_curve_percent_at_sorted(const struct sg_curve *c, const double *d_mm, const double *log10_d_mm, size_t m,
+                                double *percent, enum sg_status *st);
+
 /* Diameter, mm, at which percent_finer percent is finer (D_x).
  * Convention for plateaus and non-monotone data (METHODS.md 7.2): scanning
  * segments from the coarse end, the first with P_fine < p <= P_coarse is
