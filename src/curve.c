@@ -88,13 +88,15 @@ static enum sg_status reserve(struct sg_curve *c, size_t n)
 {
     if (n <= c->cap && c->log10_d != NULL && c->percent != NULL && c->scratch != NULL)
         return SG_OK;
+    c->n_memo = 0; /* the scratch layout changes with its size */
     double *l = realloc(c->log10_d, n * sizeof *l);
     if (l != NULL)
         c->log10_d = l;
     double *p = realloc(c->percent, n * sizeof *p);
     if (p != NULL)
         c->percent = p;
-    struct sorted_point *s = realloc(c->scratch, n * sizeof *s);
+    /* sorted points, then the previous build's diameters and their log10 */
+    void *s = realloc(c->scratch, n * (sizeof(struct sorted_point) + 2 * sizeof(double)));
     if (s != NULL)
         c->scratch = s;
     if (l == NULL || p == NULL || s == NULL)
@@ -172,8 +174,18 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
      * source from coarse to fine, so the reversed input is (nearly) in
      * order and the sort costs one comparison per point. */
     struct sorted_point *s = c->scratch;
+    /* log10 of each diameter, kept for the next build: repeated builds
+     * (Monte Carlo draws) mostly repeat the sieve apertures */
+    double *memo_d = (double *)(s + c->cap), *memo_log10 = memo_d + c->cap;
+    const size_t n_memo = c->n_memo;
+    c->n_memo = 0;
     for (size_t i = n, done = 0; i-- > 0; done++) {
-        const struct sorted_point p = {log10(pts[i].diameter_mm), pts[i].percent_finer, pts[i].rank, i};
+        const double d = pts[i].diameter_mm;
+        if (!(i < n_memo && memo_d[i] == d)) {
+            memo_d[i] = d;
+            memo_log10[i] = log10(d);
+        }
+        const struct sorted_point p = {memo_log10[i], pts[i].percent_finer, pts[i].rank, i};
         size_t j = done;
         while (j > 0 && after(&s[j - 1], &p)) {
             s[j] = s[j - 1];
@@ -181,6 +193,7 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
         }
         s[j] = p;
     }
+    c->n_memo = n;
 
     /* A run of the same size (within SG_CURVE_SAME_LOG10_D of its first
      * member) becomes one node: the member with the lowest rank, then the

@@ -41,7 +41,8 @@ struct sg_curve {
     void *impl;       /* GSL interpolation state (monotone method, n >= 3); NULL otherwise */
     /* storage kept from build to build (sg_curve_clear keeps it): */
     size_t cap;       /* room in log10_d and percent, nodes */
-    void *scratch;    /* sorting work space for cap points */
+    void *scratch;    /* sorting work space for cap points, the last build's diameters and log10 */
+    size_t n_memo;    /* diameters remembered in scratch */
 };
 
 /* Two diameters whose log10 values differ by no more than this are the same
