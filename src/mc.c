@@ -451,16 +451,16 @@ static void *work(void *arg)
                 (void)snprintf(w->first_failure, sizeof w->first_failure, "%s", e.msg);
             }
         }
+        /* row by row (the block's values in memory order, not a column
+         * at a stride of n_slots); each slot still sums its draws in order */
         struct moments *bs = p->block_stats + blk * p->n_slots;
-        for (size_t s = 0; s < p->n_slots; s++) {
-            struct moments m = {0.0, 0.0, 0.0};
-            const double shift = p->shift[s];
-            for (size_t j = 0; j < nd; j++) {
-                const double x = vals[j * p->n_slots + s];
-                if (isfinite(x))
-                    moments_add(&m, x - shift);
-            }
-            bs[s] = m;
+        for (size_t s = 0; s < p->n_slots; s++)
+            bs[s] = (struct moments){0.0, 0.0, 0.0};
+        for (size_t j = 0; j < nd; j++) {
+            const double *row = vals + j * p->n_slots;
+            for (size_t s = 0; s < p->n_slots; s++)
+                if (isfinite(row[s]))
+                    moments_add(&bs[s], row[s] - p->shift[s]);
         }
         pthread_mutex_lock(&p->lock);
         for (size_t j = 0; j < nd; j++) {
