@@ -369,6 +369,63 @@ static size_t group_mark_len(const char *s)
     return 0;
 }
 
+/* Clinger's fast path (W. D. Clinger, "How to read floating point numbers
+ * accurately", PLDI 1990): a decimal of at most 15 significant digits is an
+ * exact double, as is every power of ten up to 1e22, so one multiplication
+ * or division gives the correctly rounded value, which is what strtod()
+ * returns. s matches number_prefix() in full. false: use strtod(). */
+#define FAST_DIGITS_MAX 15
+#define FAST_POW10_MAX 22
+static bool fast_decimal(const char *s, double *out)
+{
+    static const double pow10[FAST_POW10_MAX + 1] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                                     1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15,
+                                                     1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
+    const bool neg = *s == '-';
+    if (*s == '+' || *s == '-')
+        s++;
+    unsigned long long m = 0;
+    int sig = 0, e10 = 0;
+    bool point = false;
+    for (;; s++) {
+        if (*s == '.' && !point) {
+            point = true;
+            continue;
+        }
+        if (!is_digit((unsigned char)*s))
+            break;
+        if (m != 0 || *s != '0') {
+            if (++sig > FAST_DIGITS_MAX)
+                return false;
+            m = 10 * m + (unsigned)(*s - '0');
+        }
+        e10 -= point;
+    }
+    if (*s == 'e' || *s == 'E') {
+        s++;
+        const bool eneg = *s == '-';
+        if (*s == '+' || *s == '-')
+            s++;
+        int x = 0;
+        for (int nd = 0; is_digit((unsigned char)*s); s++, nd++) {
+            if (nd >= 4)
+                return false;
+            x = 10 * x + (*s - '0');
+        }
+        e10 += eneg ? -x : x;
+    }
+    if (*s != '\0')
+        return false;
+    double v = (double)m;
+    if (m != 0) {
+        if (e10 < -FAST_POW10_MAX || e10 > FAST_POW10_MAX)
+            return false;
+        v = e10 < 0 ? v / pow10[-e10] : v * pow10[e10];
+    }
+    *out = neg ? -v : v;
+    return true;
+}
+
 /* Parses a plain decimal number (field already trimmed). With decimal_comma
  * one ',' is taken as the decimal mark. */
 static enum numerr parse_number(const struct field *f, bool decimal_comma, double *out)
@@ -381,7 +438,7 @@ static enum numerr parse_number(const struct field *f, bool decimal_comma, doubl
     memcpy(buf, f->text, f->len + 1);
 
     const char *q = buf + (buf[0] == '+' || buf[0] == '-');
-    if (same_word(q, "nan") || same_word(q, "inf") || same_word(q, "infinity"))
+    if (is_letter((unsigned char)q[0]) && (same_word(q, "nan") || same_word(q, "inf") || same_word(q, "infinity")))
         return NUM_WORD;
     if (q[0] == '0' && (q[1] == 'x' || q[1] == 'X'))
         return NUM_HEX;
@@ -417,6 +474,8 @@ static enum numerr parse_number(const struct field *f, bool decimal_comma, doubl
         return NUM_BAD;
     }
 
+    if (fast_decimal(buf, out))
+        return NUM_OK;
     errno = 0;
     char *end = NULL;
     const double v = strtod(buf, &end);
@@ -569,16 +628,34 @@ static void key_slot(struct sg_record *r, enum key k, double **num, bool **has, 
     }
 }
 
-/* Looks a word up in a list of names (case-insensitive); returns its index or
- * n, with *nearest the index of the closest name by edit distance. */
-static size_t lookup(const char *word, const char *const *names, size_t n, size_t *nearest)
+/* The name of entry i of a table whose entries (stride bytes each) begin
+ * with their name (struct keyinfo, struct kindinfo). */
+static const char *name_at(const void *table, size_t stride, size_t i)
 {
-    for (size_t i = 0; i < n; i++)
-        if (same_word(word, names[i]))
+    return *(const char *const *)(const void *)((const char *)table + i * stride);
+}
+
+/* Looks a word up in a table of names (case-insensitive; the names are
+ * lower case); returns its index or n, with *nearest the index of the
+ * closest name by edit distance. */
+static size_t lookup(const char *word, const void *table, size_t stride, size_t n, size_t *nearest)
+{
+    /* the names differ even ignoring case, so the one written exactly (as
+     * nearly always) is the only match and is looked for first */
+    for (size_t i = 0; i < n; i++) {
+        const char *name = name_at(table, stride, i);
+        if (name[0] == word[0] && strcmp(word, name) == 0)
             return i;
+    }
+    const int first = lower((unsigned char)word[0]);
+    for (size_t i = 0; i < n; i++) {
+        const char *name = name_at(table, stride, i);
+        if (name[0] == first && same_word(word, name))
+            return i;
+    }
     size_t best = 0, best_d = (size_t)-1;
     for (size_t i = 0; i < n; i++) {
-        const size_t d = edit_distance(word, names[i]);
+        const size_t d = edit_distance(word, name_at(table, stride, i));
         if (d < best_d) {
             best_d = d;
             best = i;
@@ -596,11 +673,8 @@ static void test_row(struct rp *p)
         problem(p, SG_EPARSE, fk->line, fk->col, "key is empty (write 'test,<key>,<value>', e.g. 'test,id,BH1-2.5')");
         return;
     }
-    const char *names[K_COUNT];
-    for (size_t i = 0; i < K_COUNT; i++)
-        names[i] = KEYS[i].name;
     size_t near = 0;
-    const size_t ki = lookup(fk->text, names, K_COUNT, &near);
+    const size_t ki = lookup(fk->text, KEYS, sizeof KEYS[0], K_COUNT, &near);
     if (ki == K_COUNT) {
         problem(p, SG_EPARSE, fk->line, fk->col, "unknown key '%s' (did you mean '%s'?)", show(fk->text, t),
                 KEYS[near].name);
@@ -783,7 +857,8 @@ static void process_row(struct rp *p)
      * a comma may be a decimal comma, so only the row kind is looked at. */
     const size_t look = p->delim == ',' ? (n < ROW_FIELDS_MAX ? n : ROW_FIELDS_MAX) : 1;
     for (size_t i = 0; i < look; i++) {
-        const char *o = memchr(p->f[i].text, p->other, strlen(p->f[i].text));
+        const size_t kept = p->f[i].len < FIELD_TEXT_MAX - 1 ? p->f[i].len : FIELD_TEXT_MAX - 1; /* = strlen */
+        const char *o = memchr(p->f[i].text, p->other, kept);
         if (o != NULL) {
             problem(p, SG_EPARSE, p->f[i].line, p->f[i].col,
                     "line %u uses '%c' as the separator but line %u set '%c' (the first data row decides; "
@@ -803,11 +878,8 @@ static void process_row(struct rp *p)
                 "row kind is empty (the first field of a row is test, sieve, fine_sieve, reading or pipette)");
         return;
     }
-    const char *names[R_COUNT];
-    for (size_t i = 0; i < R_COUNT; i++)
-        names[i] = KINDS[i].name;
     size_t near = 0;
-    const size_t ki = lookup(f0->text, names, R_COUNT, &near);
+    const size_t ki = lookup(f0->text, KINDS, sizeof KINDS[0], R_COUNT, &near);
     if (ki == R_COUNT) {
         problem(p, SG_EPARSE, f0->line, f0->col,
                 "unknown row kind '%s' (did you mean '%s'? rows are test, sieve, fine_sieve, reading and pipette)",
@@ -913,24 +985,33 @@ static bool check_text(struct rp *p)
         problem(p, SG_EPARSE, 1, 1, "the file is UTF-16 text, not UTF-8; save the file as UTF-8");
         return false;
     }
-    struct cursor c = p->cur;
-    while (c.i < p->n) {
-        const unsigned char b = p->s[c.i];
-        if (b == 0 || (b < 0x20 && b != '\t' && b != '\n' && b != '\r') || b == 0x7F) {
-            problem(p, SG_EPARSE, c.line, c.col,
-                    "not a text file (byte 0x%02X at line %u, column %u): give a test record saved as CSV text", b,
-                    c.line, c.col);
-            return false;
+    /* One pass over the bytes without line and column tracking; the
+     * position is worked out only for a byte that is refused. */
+    const unsigned char *s = p->s;
+    size_t i = p->cur.i;
+    while (i < p->n) {
+        const unsigned char b = s[i];
+        if (b >= 0x20 && b < 0x7F) { /* printable ASCII, nearly every byte */
+            i++;
+            continue;
         }
-        const size_t len = utf8_len(p->s + c.i, p->n - c.i);
+        const bool control = b == 0 || (b < 0x20 && b != '\t' && b != '\n' && b != '\r') || b == 0x7F;
+        const size_t len = control ? 0 : utf8_len(s + i, p->n - i);
         if (len == 0) {
-            problem(p, SG_EPARSE, c.line, c.col, "byte 0x%02X at line %u, column %u is not UTF-8 text; save the file "
-                    "as UTF-8%s", b, c.line, c.col,
-                    b == 0xB0 ? " (0xB0 is the degree sign in Latin-1 and Windows-1252)" : "");
+            struct cursor c = p->cur;
+            while (c.i < i)
+                step(&c, s, p->n);
+            if (control)
+                problem(p, SG_EPARSE, c.line, c.col,
+                        "not a text file (byte 0x%02X at line %u, column %u): give a test record saved as CSV text",
+                        b, c.line, c.col);
+            else
+                problem(p, SG_EPARSE, c.line, c.col,
+                        "byte 0x%02X at line %u, column %u is not UTF-8 text; save the file as UTF-8%s", b, c.line,
+                        c.col, b == 0xB0 ? " (0xB0 is the degree sign in Latin-1 and Windows-1252)" : "");
             return false;
         }
-        for (size_t k = 0; k < len; k++)
-            step(&c, p->s, p->n);
+        i += len;
     }
     return true;
 }
@@ -1032,37 +1113,56 @@ static void split_rows(struct rp *p)
             p->fline = p->cur.line;
             p->fcol = 1;
         }
-        const unsigned char c = p->s[p->cur.i];
-        if (special(p, c)) {
-            if (p->fpending && c == '"') {
+        /* A run of ordinary bytes: no line end inside, so the column moves
+         * by one per character (UTF-8 continuation bytes do not count). */
+        const struct cursor at = p->cur;
+        size_t j = at.i;
+        unsigned col = at.col;
+        while (j < p->n && !special(p, p->s[j])) {
+            if (p->fpending && !is_blank(p->s[j])) {
+                p->fline = at.line;
+                p->fcol = col;
+                p->fpending = false;
+                p->row_open = true;
+            }
+            col += (p->s[j] & 0xC0u) != 0x80u;
+            j++;
+        }
+        p->cur.i = j;
+        p->cur.col = col;
+        if (j == p->n) {
+            if (j > at.i)
+                (void)feed(p, at, j - at.i);
+            break;
+        }
+        const unsigned char c = p->s[j];
+        if (c == '"') { /* the run, then the quote on its own (it may open a field) */
+            if (j > at.i && !feed(p, at, j - at.i))
+                continue;
+            if (p->fpending) {
                 p->fline = p->cur.line;
                 p->fcol = p->cur.col;
                 p->fpending = false;
             }
-            if (c != '\r' && c != '\n')
-                p->row_open = true;
-            const struct cursor at = p->cur;
-            if (!feed(p, at, 1))
+            p->row_open = true;
+            if (!feed(p, p->cur, 1))
                 continue;
             step(&p->cur, p->s, p->n);
-            if ((c == '\r' || c == '\n') && p->csv.quoted) {
-                problem(p, SG_EPARSE, p->fline, p->fcol,
-                        "quoted field is not closed on line %u (add the closing '\"', or remove the quote)", p->fline);
-                reset_csv(p);
-            }
             continue;
         }
-        const struct cursor at = p->cur;
-        while (p->cur.i < p->n && !special(p, p->s[p->cur.i])) {
-            if (p->fpending && !is_blank(p->s[p->cur.i])) {
-                p->fline = p->cur.line;
-                p->fcol = p->cur.col;
-                p->fpending = false;
-                p->row_open = true;
-            }
-            step(&p->cur, p->s, p->n);
+        /* The run and the separator or line end that closes it in one
+         * call: libcsv reports the field (and row) at that last byte, with
+         * the cursor on it as the field callback expects. */
+        if (c != '\r' && c != '\n')
+            p->row_open = true;
+        if (!feed(p, at, j + 1 - at.i))
+            continue;
+        step(&p->cur, p->s, p->n);
+        if ((c == '\r' || c == '\n') && p->csv.quoted) {
+            problem(p, SG_EPARSE, p->fline, p->fcol,
+                    "quoted field is not closed on line %u (add the closing '\"', or remove the quote)", p->fline);
+            reset_csv(p);
         }
-        (void)feed(p, at, p->cur.i - at.i);
     }
     if (p->stop)
         return;
