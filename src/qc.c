@@ -438,13 +438,16 @@ struct curve_pt {
     size_t index;
 };
 
-static int by_diameter_desc(const void *a, const void *b)
+/* Coarsest first, then in point order (a total order: any sort gives it). */
+static bool goes_after(const struct curve_pt *x, const struct curve_pt *y)
 {
-    const struct curve_pt *x = a, *y = b;
     if (x->d_mm != y->d_mm)
-        return x->d_mm < y->d_mm ? 1 : -1;
-    return x->index < y->index ? -1 : x->index > y->index;
+        return x->d_mm < y->d_mm;
+    return x->index > y->index;
 }
+
+/* Curve points checked without a heap allocation (a record has a few dozen). */
+#define MONOTONE_ON_STACK 64
 
 /* The curve's points must not rise as the diameter falls (METHODS.md 6.3
  * #1): each point is compared with the lowest percent of the strictly coarser
@@ -458,16 +461,25 @@ static enum sg_status rule_monotone(const struct sg_qc_limits *lim, struct sg_re
              isfinite(res->points[i].percent_finer);
     if (n < 2)
         return SG_OK;
-    struct curve_pt *cp = malloc(n * sizeof *cp);
+    struct curve_pt local[MONOTONE_ON_STACK];
+    struct curve_pt *cp = n <= MONOTONE_ON_STACK ? local : malloc(n * sizeof *cp);
     if (cp == NULL)
         return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory checking the curve (%zu points)", n);
+    /* insertion sort: the points come coarse to fine per source, so nearly
+     * every point goes straight to the end */
     size_t m = 0;
     for (size_t i = 0; i < res->n_points; i++) {
         const struct sg_point *p = &res->points[i];
-        if (p->on_curve && isfinite(p->diameter_mm) && isfinite(p->percent_finer))
-            cp[m++] = (struct curve_pt){p->diameter_mm, p->percent_finer, i};
+        if (!(p->on_curve && isfinite(p->diameter_mm) && isfinite(p->percent_finer)))
+            continue;
+        const struct curve_pt c = {p->diameter_mm, p->percent_finer, i};
+        size_t j = m++;
+        while (j > 0 && goes_after(&cp[j - 1], &c)) {
+            cp[j] = cp[j - 1];
+            j--;
+        }
+        cp[j] = c;
     }
-    qsort(cp, n, sizeof *cp, by_diameter_desc);
     struct tally rise;
     tally_init(&rise);
     double min_coarser = (double)INFINITY;
@@ -487,7 +499,8 @@ static enum sg_status rule_monotone(const struct sg_qc_limits *lim, struct sg_re
         min_coarser = fmin(min_coarser, group_min);
         i = j;
     }
-    free(cp);
+    if (cp != local)
+        free(cp);
     if (rise.count == 0)
         return SG_OK;
     char where[96];
@@ -591,18 +604,26 @@ static enum sg_status summarise(const struct sg_qc_limits *lim, struct sg_result
             seen = strcmp(res->flags[j].name, res->flags[i].name) == 0;
         if (seen)
             continue;
-        const int n = snprintf(names + used, sizeof names - used, "%s%s", used ? "|" : "", res->flags[i].name);
-        if (n < 0 || (size_t)n >= sizeof names - used) {
+        const size_t sep = used ? 1 : 0, len = strlen(res->flags[i].name);
+        if (sep + len >= sizeof names - used) { /* whole names only */
             names[used] = '\0';
             truncated = true;
             break;
         }
-        used += (size_t)n;
+        if (sep)
+            names[used] = '|';
+        memcpy(names + used + sep, res->flags[i].name, len + 1);
+        used += sep + len;
     }
     const enum sg_severity worst = sg_result_worst(res);
     char note[SG_QNOTE_MAX];
-    (void)snprintf(note, sizeof note, "worst QC flag: %s%s", res->n_flags ? sg_severity_name(worst) : "none",
-                   lim->strict ? "; strict: warnings count as failures" : "; warnings fail only with --strict");
+    const char *wname = res->n_flags ? sg_severity_name(worst) : "none";
+    const char *tail = lim->strict ? "; strict: warnings count as failures" : "; warnings fail only with --strict";
+    /* "worst QC flag: <name><tail>", well within the note's size */
+    const size_t lw = strlen(wname), lt = strlen(tail);
+    memcpy(note, "worst QC flag: ", 15);
+    memcpy(note + 15, wname, lw);
+    memcpy(note + 15 + lw, tail, lt + 1);
     enum sg_status st = set_text(res, "qc_status", sg_qc_status_name(worst, lim->strict), note, err);
     if (st != SG_OK)
         return st;
