@@ -864,6 +864,13 @@ static bool supersedes(enum sg_cal_event_type t)
 enum sg_status sg_cal_status(const struct sg_cal_instrument *ins, struct sg_date on, long within_days,
                              struct sg_cal_status *out, struct sg_error *err)
 {
+    return sg_cal_status_with(ins, on, within_days, NULL, NULL, out, err);
+}
+
+enum sg_status sg_cal_status_with(const struct sg_cal_instrument *ins, struct sg_date on, long within_days,
+                                  sg_cal_evaluator eval, void *ctx, struct sg_cal_status *out,
+                                  struct sg_error *err)
+{
     memset(out, 0, sizeof *out);
     for (size_t p = 0; p < SG_CAL_PART_COUNT; p++)
         out->entry[p] = -1;
@@ -913,8 +920,9 @@ enum sg_status sg_cal_status(const struct sg_cal_instrument *ins, struct sg_date
         }
         return SG_OK;
     }
-    struct sg_cal_result *res = malloc(sizeof *res);
-    if (res == NULL)
+    /* Each entry's result: evaluated here into one buffer, or kept by eval. */
+    struct sg_cal_result *own = NULL;
+    if (eval == NULL && (own = malloc(sizeof *own)) == NULL)
         return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
     enum sg_status st = SG_OK;
     long due_day = 0;
@@ -928,7 +936,11 @@ enum sg_status sg_cal_status(const struct sg_cal_instrument *ins, struct sg_date
             continue;
         }
         const struct sg_cal_event *ev = &ins->events[out->entry[p]];
-        st = sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, (double)NAN, res, err);
+        const struct sg_cal_result *res = own;
+        if (eval != NULL)
+            st = eval(ctx, (size_t)out->entry[p], (enum sg_cal_part)p, &res, err);
+        else
+            st = sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, (double)NAN, own, err);
         if (st != SG_OK)
             break;
         if (!res->accepted && out->reason[0] == '\0') {
@@ -942,7 +954,7 @@ enum sg_status sg_cal_status(const struct sg_cal_instrument *ins, struct sg_date
             due_part = (int)p;
         }
     }
-    free(res);
+    free(own);
     if (st != SG_OK)
         return st;
     if (due_part >= 0) {

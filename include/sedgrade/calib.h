@@ -306,6 +306,22 @@ enum sg_status sg_cal_validate_history(const struct sg_cal_instrument *ins, stru
 enum sg_status sg_cal_status(const struct sg_cal_instrument *ins, struct sg_date on, long within_days,
                              struct sg_cal_status *out, struct sg_error *err);
 
+/* Supplies sg_cal_status_with with the result of
+ * sg_cal_evaluate(ins, &ins->events[event], part, NaN, ...) for an entry in
+ * force, from wherever the caller keeps it: *res points at a result that
+ * stays valid until sg_cal_status_with returns. Returns what sg_cal_evaluate
+ * returned, with its message in err (may be NULL). */
+typedef enum sg_status (*sg_cal_evaluator)(void *ctx, size_t event, enum sg_cal_part part,
+                                           const struct sg_cal_result **res, struct sg_error *err);
+
+/* As sg_cal_status, with each entry in force evaluated by eval(ctx, ...)
+ * instead of sg_cal_evaluate (a cache of results: calibio.h); eval NULL is
+ * sg_cal_status itself. The status, reason and errors are those
+ * sg_cal_status gives when eval returns what sg_cal_evaluate would. */
+enum sg_status sg_cal_status_with(const struct sg_cal_instrument *ins, struct sg_date on, long within_days,
+                                  sg_cal_evaluator eval, void *ctx, struct sg_cal_status *out,
+                                  struct sg_error *err);
+
 /* Name of event i as used in calibration_used: "ID@YYYY-MM-DD", or
  * "ID@YYYY-MM-DD#n" when more than one calibration or verification of the
  * instrument is dated that day (n = 1, 2, ... in file order). buf >= 96 bytes. */
