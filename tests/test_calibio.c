@@ -748,3 +748,361 @@ Test(calibio, resolve_with_another_entry)
                  SG_ENOTFOUND);
     sg_record_release(&rec);
 }
+
+/* ---- the register cache: the same results as resolving afresh ------------------------------- */
+
+/* An invented thermometer whose history passes through every state: the
+ * ice-point readings give corrections 0 - reading (METHODS.md 10.5):
+ * -0.15 C from 2020-01-05 (due 2021-01-05), -0.05 C from 2021-06-01 (due
+ * 2022-06-01), withdrawn 2022-03-01, +0.10 C from 2022-04-01 (due
+ * 2023-04-01), retired 2023-09-01. */
+static const char history_th[] = "instrument,T-TH2\n"
+                                 "kind,thermometer\n"
+                                 "\n"
+                                 "event,2020-01-05,calibration\n"
+                                 "by,tester\n"
+                                 "method,ice point\n"
+                                 "ice_point,0.15\n"
+                                 "limit,correction_max_c,0.5\n"
+                                 "due,2021-01-05\n"
+                                 "\n"
+                                 "event,2021-06-01,calibration\n"
+                                 "by,tester\n"
+                                 "method,ice point\n"
+                                 "ice_point,0.05\n"
+                                 "limit,correction_max_c,0.5\n"
+                                 "due,2022-06-01\n"
+                                 "\n"
+                                 "event,2022-03-01,out_of_service\n"
+                                 "by,tester\n"
+                                 "note,dropped on the bench\n"
+                                 "\n"
+                                 "event,2022-04-01,calibration\n"
+                                 "by,tester\n"
+                                 "method,ice point\n"
+                                 "ice_point,-0.10\n"
+                                 "limit,correction_max_c,0.5\n"
+                                 "due,2023-04-01\n"
+                                 "\n"
+                                 "event,2023-09-01,retirement\n"
+                                 "by,tester\n";
+
+/* The history above, by test date: the correction in force (NAN when none)
+ * and whether it is overdue. */
+static void history_th_on(struct sg_date d, double *offset_c, bool *overdue, bool *refused)
+{
+    const long day = sg_date_days(d);
+    const struct {
+        int y, m, dd;
+        double offset_c;   /* METHODS.md 10.5: correction = 0 - ice-point reading */
+        int due_y, due_m, due_d;
+    } span[] = {{2020, 1, 5, -0.15, 2021, 1, 5}, {2021, 6, 1, -0.05, 2022, 6, 1},
+                {2022, 3, 1, (double)NAN, 0, 0, 0}, {2022, 4, 1, 0.10, 2023, 4, 1},
+                {2023, 9, 1, (double)NAN, 0, 0, 0}};
+    *offset_c = (double)NAN;
+    *overdue = false;
+    for (size_t i = 0; i < sizeof span / sizeof span[0]; i++) {
+        const struct sg_date from = {span[i].y, span[i].m, span[i].dd};
+        if (day < sg_date_days(from))
+            break;
+        *offset_c = span[i].offset_c;
+        if (!isnan(span[i].offset_c)) {
+            const struct sg_date due = {span[i].due_y, span[i].due_m, span[i].due_d};
+            *overdue = sg_date_days(due) < day;
+        } else {
+            *overdue = false;
+        }
+    }
+    *refused = isnan(*offset_c);
+}
+
+static bool same_double(double a, double b)
+{
+    return memcmp(&a, &b, sizeof a) == 0;
+}
+
+/* Two resolutions agree: status, message and location, and every constant bit for bit. */
+static void assert_same_resolution(enum sg_status sa, const struct sg_error *ea, const struct sg_constants *a,
+                                   enum sg_status sb, const struct sg_error *eb, const struct sg_constants *b)
+{
+    cr_assert_eq(sa, sb, "status %d vs %d (%s | %s)", sa, sb, ea->msg, eb->msg);
+    cr_assert_eq(ea->code, eb->code);
+    cr_assert_eq(ea->line, eb->line);
+    cr_assert_eq(ea->col, eb->col);
+    cr_assert_str_eq(ea->msg, eb->msg);
+    if (sa != SG_OK)
+        return;
+    cr_assert_eq(a->has_depth_line, b->has_depth_line);
+    cr_assert(same_double(a->depth_at_zero_mm, b->depth_at_zero_mm));
+    cr_assert(same_double(a->depth_per_unit_mm, b->depth_per_unit_mm));
+    for (size_t i = 0; i < 3; i++)
+        cr_assert(same_double(a->depth_cov[i], b->depth_cov[i]));
+    cr_assert(same_double(a->meniscus_correction, b->meniscus_correction));
+    cr_assert(same_double(a->meniscus_u, b->meniscus_u));
+    cr_assert_eq(a->has_blank_line, b->has_blank_line);
+    cr_assert(same_double(a->blank_c0, b->blank_c0));
+    cr_assert(same_double(a->blank_c1, b->blank_c1));
+    cr_assert(same_double(a->blank_tmin_c, b->blank_tmin_c));
+    cr_assert(same_double(a->blank_tmax_c, b->blank_tmax_c));
+    cr_assert(same_double(a->blank_u, b->blank_u));
+    cr_assert_eq(a->has_blank_const, b->has_blank_const);
+    cr_assert(same_double(a->blank_const, b->blank_const));
+    cr_assert_eq(a->has_pipette_volume, b->has_pipette_volume);
+    cr_assert(same_double(a->pipette_volume_ml, b->pipette_volume_ml));
+    cr_assert(same_double(a->pipette_volume_u_ml, b->pipette_volume_u_ml));
+    cr_assert(same_double(a->thermometer_offset_c, b->thermometer_offset_c));
+    cr_assert_eq(a->has_scale_range, b->has_scale_range);
+    cr_assert(same_double(a->scale_min, b->scale_min));
+    cr_assert(same_double(a->scale_max, b->scale_max));
+    cr_assert_str_eq(a->calibration_used, b->calibration_used);
+    cr_assert_eq(a->n_notes, b->n_notes);
+    for (size_t i = 0; i < a->n_notes; i++) {
+        cr_assert_str_eq(a->notes[i].name, b->notes[i].name);
+        cr_assert_eq(a->notes[i].severity, b->notes[i].severity);
+        cr_assert_str_eq(a->notes[i].message, b->notes[i].message);
+    }
+}
+
+/* Resolves rec through the cache and afresh (sg_calibio_resolve_with), checks
+ * they agree and returns the cached outcome. */
+static enum sg_status resolve_both(struct sg_calibio_cache *cache, const char *dir, const struct sg_record *rec,
+                                   const char *ov_id, const char *ov_entry, struct sg_constants *k,
+                                   struct sg_error *err)
+{
+    struct sg_constants fresh;
+    struct sg_error fresh_err;
+    const enum sg_status st = sg_calibio_resolve_with_cached(cache, rec, ov_id, ov_entry, k, err);
+    const enum sg_status fst = sg_calibio_resolve_with(dir, rec, ov_id, ov_entry, &fresh, &fresh_err);
+    assert_same_resolution(st, err, k, fst, &fresh_err, &fresh);
+    if (ov_id == NULL) {
+        struct sg_constants plain;
+        struct sg_error plain_err;
+        const enum sg_status pst = sg_calibio_resolve_cached(cache, rec, &plain, &plain_err);
+        assert_same_resolution(st, err, k, pst, &plain_err, &plain);
+    }
+    return st;
+}
+
+Test(calibio, cache_gives_the_same_results_and_messages)
+{
+    char dir[64];
+    copy_register(dir, sizeof dir);
+    char path[128];
+    (void)snprintf(path, sizeof path, "%s/T-TH2.csv", dir);
+    spit(path, history_th);
+    struct sg_calibio_cache cache;
+    sg_calibio_cache_init(&cache, dir);
+    struct sg_record rec;
+    struct sg_constants k;
+    struct sg_error err;
+    /* every case twice: the second answer comes from what the cache kept */
+    for (int pass = 0; pass < 2; pass++) {
+        /* found: METHODS.md 3.3 / 13.3 #31 (L = 16.295 - 0.164 R cm), METHODS.md 10.5 (-0.15 C) */
+        record_for(&rec, "T-H152", "T-CY-A", "T-TH", "", 2021, 1, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_OK, "%s", err.msg);
+        cr_assert_float_eq(k.depth_at_zero_mm, 162.95, 0.01);
+        cr_assert_float_eq(k.depth_per_unit_mm, -1.64, 1e-9);
+        cr_assert_float_eq(k.thermometer_offset_c, -0.15, 1e-12);
+        cr_assert_str_eq(k.calibration_used, "T-H152@2020-01-12;T-CY-A@2020-01-10;T-TH@2020-01-05");
+        sg_record_release(&rec);
+        /* the cylinder through the hydrometer's calibration */
+        record_for(&rec, "T-H152", "", "", "", 2021, 1, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_OK, "%s", err.msg);
+        cr_assert_float_eq(k.depth_at_zero_mm, 162.95, 0.01);
+        sg_record_release(&rec);
+        /* pipette: METHODS.md 13.8 #73 */
+        record_for(&rec, "", "", "", "T-PP", 2021, 1, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_OK, "%s", err.msg);
+        cr_assert_float_eq(k.pipette_volume_ml, 9.9996, 1e-4);
+        sg_record_release(&rec);
+        /* not found, as hydrometer and as thermometer */
+        record_for(&rec, "T-NOPE", "", "", "", 2021, 1, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_ENOTFOUND);
+        cr_assert(strstr(err.msg, "T-NOPE") != NULL, "%s", err.msg);
+        cr_assert_eq(err.line, 7);
+        sg_record_release(&rec);
+        record_for(&rec, "", "", "T-NOPE", "", 2021, 1, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_ENOTFOUND);
+        cr_assert_eq(err.line, 9);
+        cr_assert_eq(err.col, 13);
+        sg_record_release(&rec);
+        /* not an instrument ID */
+        record_for(&rec, "", "", ".T-TH", "", 2021, 1, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "not an instrument ID") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+        /* of another kind than the record says */
+        record_for(&rec, "T-TH", "", "", "", 2021, 1, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "not a hydrometer") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+        /* another scale */
+        record_for(&rec, "T-H152", "", "", "", 2021, 1, 1);
+        rec.scale = SG_SCALE_DENSITY;
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "reading_scale") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+        /* no date */
+        record_for(&rec, "", "", "T-TH2", "", 0, 0, 0);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "test,date") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+        /* never calibrated on the date, withdrawn, retired */
+        record_for(&rec, "", "", "T-TH2", "", 2019, 12, 31);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "no calibration on or before 2019-12-31") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+        record_for(&rec, "", "", "T-TH2", "", 2022, 3, 15);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "out_of_service on 2022-03-01") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+        record_for(&rec, "", "", "T-TH2", "", 2023, 9, 2);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "retired on 2023-09-01") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+        /* overdue: a warning note, the constants still applied (METHODS.md 10.5: -0.15 C) */
+        record_for(&rec, "", "", "T-TH2", "", 2021, 2, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_OK, "%s", err.msg);
+        cr_assert_float_eq(k.thermometer_offset_c, -0.15, 1e-12);
+        cr_assert_eq(k.n_notes, 1);
+        cr_assert_str_eq(k.notes[0].name, "calibration_overdue");
+        cr_assert(strstr(k.notes[0].message, "due 2021-01-05") != NULL, "%s", k.notes[0].message);
+        sg_record_release(&rec);
+        /* another entry applied in its place, and a rejected one refused (demo register below) */
+        record_for(&rec, "", "", "T-TH2", "", 2021, 7, 1);
+        cr_assert_eq(resolve_both(&cache, dir, &rec, "T-TH2", "2020-01-05", &k, &err), SG_OK, "%s", err.msg);
+        cr_assert_float_eq(k.thermometer_offset_c, -0.15, 1e-12);
+        cr_assert_str_eq(k.calibration_used, "T-TH2@2020-01-05");
+        cr_assert_eq(resolve_both(&cache, dir, &rec, "T-TH2", "2020-02-05", &k, &err), SG_ENOTFOUND);
+        sg_record_release(&rec);
+    }
+    sg_calibio_cache_release(&cache);
+
+    /* a register file with a bad row: named with its line and column, each time */
+    sg_calibio_cache_init(&cache, BROKEN);
+    for (int pass = 0; pass < 2; pass++) {
+        record_for(&rec, "", "", "T-BAD", "", 2021, 1, 1);
+        cr_assert_eq(resolve_both(&cache, BROKEN, &rec, NULL, NULL, &k, &err), SG_EPARSE);
+        cr_assert(strstr(err.msg, "T-BAD.csv:8:11") != NULL, "%s", err.msg);
+        cr_assert_eq(err.line, 9);
+        sg_record_release(&rec);
+    }
+    sg_calibio_cache_release(&cache);
+
+    /* the demo pipette: a rejected verification in force, and as an override */
+    sg_calibio_cache_init(&cache, DEMO_REGISTER);
+    for (int pass = 0; pass < 2; pass++) {
+        record_for(&rec, "", "", "", "RML-PP-03", 2025, 8, 5);
+        cr_assert_eq(resolve_both(&cache, DEMO_REGISTER, &rec, NULL, NULL, &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "rejected") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+        record_for(&rec, "", "", "", "RML-PP-03", 2026, 10, 15);
+        cr_assert_eq(resolve_both(&cache, DEMO_REGISTER, &rec, "RML-PP-03", "2025-08-04", &k, &err), SG_EINVAL);
+        cr_assert(strstr(err.msg, "rejected") != NULL, "%s", err.msg);
+        sg_record_release(&rec);
+    }
+    sg_calibio_cache_release(&cache);
+
+    /* no register folder, or none given */
+    sg_calibio_cache_init(&cache, "/nonexistent/register");
+    record_for(&rec, "T-H152", "", "", "", 2021, 1, 1);
+    for (int pass = 0; pass < 2; pass++) {
+        cr_assert_eq(resolve_both(&cache, "/nonexistent/register", &rec, NULL, NULL, &k, &err), SG_ENOTFOUND);
+        cr_assert(strstr(err.msg, "/nonexistent/register") != NULL, "%s", err.msg);
+    }
+    sg_calibio_cache_release(&cache);
+    sg_calibio_cache_init(&cache, NULL);
+    cr_assert_eq(resolve_both(&cache, NULL, &rec, NULL, NULL, &k, &err), SG_ENOTFOUND);
+    sg_record_release(&rec);
+    sg_calibio_cache_release(&cache);
+    sg_calibio_cache_release(NULL);
+    remove_register(dir);
+}
+
+Test(calibio, cache_reused_over_a_hundred_records)
+{
+    char dir[64];
+    copy_register(dir, sizeof dir);
+    char path[128];
+    (void)snprintf(path, sizeof path, "%s/T-TH2.csv", dir);
+    spit(path, history_th);
+    struct sg_calibio_cache cache;
+    sg_calibio_cache_init(&cache, dir);
+    /* 100 test dates 13 days apart from 2019-11-20 to 2023-06-27, visited forwards and then
+     * backwards (the second visit of each date answered from the cache), alternating between
+     * a hydrometer set and a thermometer alone so that the cache serves several instruments */
+    const long first = sg_date_days((struct sg_date){2019, 11, 20});
+    size_t refused = 0, overdue = 0;
+    for (int pass = 0; pass < 2; pass++)
+        for (int i = 0; i < 100; i++) {
+            const int n = pass == 0 ? i : 99 - i;
+            const struct sg_date d = sg_date_from_days(first + 13L * n);
+            struct sg_record rec;
+            if (n % 2 == 0)
+                record_for(&rec, "T-H152", "T-CY-A", "T-TH2", "", d.year, d.month, d.day);
+            else
+                record_for(&rec, "", "", "T-TH2", "", d.year, d.month, d.day);
+            struct sg_constants k;
+            struct sg_error err;
+            const enum sg_status st = resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err);
+            double offset_c;
+            bool late, out;
+            history_th_on(d, &offset_c, &late, &out);
+            const bool before_h152 = sg_date_days(d) < sg_date_days((struct sg_date){2020, 1, 12});
+            if (out || (n % 2 == 0 && before_h152)) {
+                cr_assert_eq(st, SG_EINVAL, "n %d: %s", n, err.msg);
+                refused++;
+            } else {
+                cr_assert_eq(st, SG_OK, "n %d: %s", n, err.msg);
+                cr_assert_float_eq(k.thermometer_offset_c, offset_c, 1e-12); /* METHODS.md 10.5 */
+                cr_assert_eq(k.n_notes, late ? 1u : 0u, "n %d", n);
+                if (n % 2 == 0)
+                    cr_assert_float_eq(k.depth_at_zero_mm, 162.95, 0.01); /* METHODS.md 13.3 #31 */
+                overdue += late;
+            }
+            sg_record_release(&rec);
+        }
+    /* the history's spans (dates 13 days apart): each state is met */
+    cr_assert_gt(refused, 0);
+    cr_assert_gt(overdue, 0);
+    cr_assert_lt(refused + overdue, 200);
+    sg_calibio_cache_release(&cache);
+    remove_register(dir);
+}
+
+/* An evaluator that calls sg_cal_evaluate, as sg_cal_status does. */
+static enum sg_status plain_eval(void *ctx, size_t event, enum sg_cal_part part, const struct sg_cal_result **res,
+                                 struct sg_error *err)
+{
+    const struct sg_cal_instrument *ins = ctx;
+    static struct sg_cal_result r; /* one test thread */
+    *res = &r;
+    return sg_cal_evaluate(ins, &ins->events[event], part, (double)NAN, &r, err);
+}
+
+Test(calibio, status_with_an_evaluator_is_sg_cal_status)
+{
+    static const char *const ids[] = {"RML-CY-11", "RML-H152-01", "RML-HD-02", "RML-PP-03", "RML-TH-05", "RML-TH-06"};
+    for (size_t i = 0; i < sizeof ids / sizeof ids[0]; i++) {
+        struct sg_cal_instrument ins;
+        struct sg_error err;
+        cr_assert_eq(sg_calibio_load(DEMO_REGISTER, ids[i], &ins, &err), SG_OK, "%s", err.msg);
+        for (long day = sg_date_days((struct sg_date){2023, 1, 1}); day < sg_date_days((struct sg_date){2028, 1, 1});
+             day += 17) {
+            struct sg_cal_status a, b;
+            const struct sg_date d = sg_date_from_days(day);
+            cr_assert_eq(sg_cal_status(&ins, d, 30, &a, NULL), SG_OK);
+            cr_assert_eq(sg_cal_status_with(&ins, d, 30, plain_eval, &ins, &b, NULL), SG_OK);
+            cr_assert_eq(a.state, b.state);
+            for (size_t p = 0; p < SG_CAL_PART_COUNT; p++)
+                cr_assert_eq(a.entry[p], b.entry[p]);
+            cr_assert_eq(a.has_due, b.has_due);
+            cr_assert_eq(sg_date_days(a.due), sg_date_days(b.due));
+            cr_assert_eq(a.days_to_due, b.days_to_due);
+            cr_assert_eq(a.last_event, b.last_event);
+            cr_assert_str_eq(a.location, b.location);
+            cr_assert_str_eq(a.reason, b.reason);
+        }
+        sg_cal_instrument_release(&ins);
+    }
+}

@@ -114,6 +114,40 @@ enum sg_status sg_calibio_append(const char *register_dir, const char *id, const
 enum sg_status sg_calibio_resolve(const char *register_dir, const struct sg_record *rec, struct sg_constants *k,
                                   struct sg_error *err);
 
+/* A register cache, for resolving many records in one command: each
+ * instrument file is read, parsed and validated at most once (a file that
+ * does not exist or does not load is remembered with its status and
+ * message), and each entry's evaluation and each instrument's status on a
+ * date are computed once. The register must not change while a cache is in
+ * use (a cache lives for one command invocation). Results and messages are
+ * exactly those of sg_calibio_resolve. A cache belongs to one thread at a
+ * time (no locks): give each worker its own. The fields are private. */
+struct sg_calibio_slot; /* one instrument ID looked up (calibio.c) */
+struct sg_calibio_cache {
+    const char *register_dir;       /* as given to init: not copied, it must outlive the cache */
+    int dir_state;                  /* 0 not yet looked at; 1 a folder; -1 not a folder */
+    struct sg_calibio_slot **slots; /* in order of first use */
+    size_t n_slots, cap_slots;
+    size_t *index; /* open-addressing table of slot numbers + 1 by ID hash; cap_index a power of two */
+    size_t cap_index;
+};
+
+/* An empty cache for register_dir (may be NULL: every record that names an
+ * instrument then fails as sg_calibio_resolve fails). Allocates nothing. */
+void sg_calibio_cache_init(struct sg_calibio_cache *cache, const char *register_dir);
+/* Frees everything the cache keeps; it is empty (same folder) afterwards. Accepts NULL. */
+void sg_calibio_cache_release(struct sg_calibio_cache *cache);
+
+/* sg_calibio_resolve through a cache: the same constants, notes, statuses
+ * and messages. SG_ENOMEM when the cache cannot grow. */
+enum sg_status sg_calibio_resolve_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
+                                         struct sg_constants *k, struct sg_error *err);
+
+/* sg_calibio_resolve_with through a cache. */
+enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
+                                              const char *override_id, const char *override_entry,
+                                              struct sg_constants *k, struct sg_error *err);
+
 /* As sg_calibio_resolve, but for instrument override_id the entry named by
  * override_entry ("YYYY-MM-DD" or "YYYY-MM-DD#n", sg_cal_find_entry) is
  * applied instead of the entry in force, whatever the test date (for "what

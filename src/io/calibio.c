@@ -11,6 +11,7 @@
 #include <fcntl.h>
 #include <math.h>
 #include <stdarg.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -1249,10 +1250,343 @@ enum sg_status sg_calibio_append(const char *register_dir, const char *id, const
     return st;
 }
 
+/* ---- the register cache ------------------------------------------------------------------- */
+
+/* FNV-1a, 64 bits (Fowler, Noll, Vo: the published offset basis and prime). */
+#define FNV_OFFSET_BASIS UINT64_C(14695981039346656037)
+#define FNV_PRIME UINT64_C(1099511628211)
+/* 2^64 divided by the golden ratio (Knuth's multiplicative hashing). */
+#define GOLDEN_RATIO_64 UINT64_C(0x9E3779B97F4A7C15)
+#define CACHE_TABLE_MIN 16 /* first size of the cache's hash tables (a power of two) */
+
+/* One evaluation of one part of one event, kept: area_mm2 is NaN but for a
+ * depth line given its cylinder's cross-section. */
+struct eval_memo {
+    enum sg_cal_part part;
+    double area_mm2;
+    enum sg_status st;         /* of sg_cal_evaluate */
+    struct sg_error *err;      /* st != SG_OK: its message */
+    struct sg_cal_result *res; /* st == SG_OK */
+};
+
+/* What is kept of one event: its evaluations and its calibration_used label. */
+struct event_memo {
+    struct eval_memo *v;
+    size_t n, cap;
+    bool has_label;
+    char label[96]; /* sg_cal_entry_label */
+};
+
+/* An instrument's status on one date, as resolution uses it (compact: a
+ * batch meets thousands of dates). */
+struct day_memo {
+    struct sg_date date, due;
+    int32_t entry[SG_CAL_PART_COUNT]; /* event indices (at most SG_CAL_EVENTS_MAX) or -1 */
+    unsigned char st;                 /* enum sg_status of sg_cal_status */
+    unsigned char state;              /* enum sg_cal_state */
+    bool has_due;
+    char *text; /* st != SG_OK: the error's message; out of service or retired: the reason; else NULL */
+};
+
+/* One instrument ID looked up: its file as loaded (or why it could not be),
+ * and what was computed from it. */
+struct sg_calibio_slot {
+    char *id;
+    enum sg_status st;            /* of sg_calibio_load; SG_ENOMEM: not loaded (tried again) */
+    struct sg_error err;          /* its message when st != SG_OK */
+    struct sg_cal_instrument ins; /* st == SG_OK */
+    struct event_memo *events;    /* ins.n_events of them, from the first evaluation */
+    struct day_memo *days;        /* in order of first use */
+    size_t n_days, cap_days;
+    uint32_t *day_index;          /* open addressing by date: position in days + 1; cap_day_index a power of two */
+    size_t cap_day_index;
+};
+
+void sg_calibio_cache_init(struct sg_calibio_cache *cache, const char *register_dir)
+{
+    memset(cache, 0, sizeof *cache);
+    cache->register_dir = register_dir;
+}
+
+static void slot_free(struct sg_calibio_slot *s)
+{
+    if (s == NULL)
+        return;
+    if (s->events != NULL) {
+        for (size_t i = 0; i < s->ins.n_events; i++) {
+            for (size_t j = 0; j < s->events[i].n; j++) {
+                free(s->events[i].v[j].err);
+                free(s->events[i].v[j].res);
+            }
+            free(s->events[i].v);
+        }
+        free(s->events);
+    }
+    for (size_t i = 0; i < s->n_days; i++)
+        free(s->days[i].text);
+    free(s->days);
+    free(s->day_index);
+    sg_cal_instrument_release(&s->ins);
+    free(s->id);
+    free(s);
+}
+
+void sg_calibio_cache_release(struct sg_calibio_cache *cache)
+{
+    if (cache == NULL)
+        return;
+    for (size_t i = 0; i < cache->n_slots; i++)
+        slot_free(cache->slots[i]);
+    free(cache->slots);
+    free(cache->index);
+    sg_calibio_cache_init(cache, cache->register_dir);
+}
+
+static uint64_t hash_id(const char *id)
+{
+    uint64_t h = FNV_OFFSET_BASIS;
+    for (const unsigned char *p = (const unsigned char *)id; *p != '\0'; p++)
+        h = (h ^ *p) * FNV_PRIME;
+    return h;
+}
+
+/* Puts slot number i (stored as i + 1) into the index by its ID's hash. */
+static void index_put(size_t *index, size_t cap, const char *id, size_t i)
+{
+    size_t at = (size_t)hash_id(id) & (cap - 1);
+    while (index[at] != 0)
+        at = (at + 1) & (cap - 1);
+    index[at] = i + 1;
+}
+
+/* The slot of instrument id, made (and its file loaded) on first use.
+ * SG_ENOMEM (err set) when the cache cannot grow; the slot's own st tells
+ * how its file loaded. */
+static enum sg_status cache_slot(struct sg_calibio_cache *c, const char *id, struct sg_calibio_slot **out,
+                                 struct sg_error *err)
+{
+    struct sg_calibio_slot *s = NULL;
+    if (c->cap_index > 0) {
+        size_t at = (size_t)hash_id(id) & (c->cap_index - 1);
+        while (c->index[at] != 0) {
+            struct sg_calibio_slot *t = c->slots[c->index[at] - 1];
+            if (strcmp(t->id, id) == 0) {
+                s = t;
+                break;
+            }
+            at = (at + 1) & (c->cap_index - 1);
+        }
+    }
+    if (s == NULL) {
+        if (2 * (c->n_slots + 1) > c->cap_index) {
+            const size_t cap = c->cap_index ? 2 * c->cap_index : CACHE_TABLE_MIN;
+            size_t *index = calloc(cap, sizeof *index);
+            if (index == NULL)
+                return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory keeping the calibration register");
+            for (size_t i = 0; i < c->n_slots; i++)
+                index_put(index, cap, c->slots[i]->id, i);
+            free(c->index);
+            c->index = index;
+            c->cap_index = cap;
+        }
+        if (c->n_slots == c->cap_slots) {
+            const size_t cap = c->cap_slots ? 2 * c->cap_slots : CACHE_TABLE_MIN;
+            struct sg_calibio_slot **slots = realloc(c->slots, cap * sizeof *slots);
+            if (slots == NULL)
+                return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory keeping the calibration register");
+            c->slots = slots;
+            c->cap_slots = cap;
+        }
+        s = calloc(1, sizeof *s);
+        const size_t len = strlen(id);
+        if (s == NULL || (s->id = malloc(len + 1)) == NULL) {
+            free(s);
+            return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory keeping the calibration register");
+        }
+        memcpy(s->id, id, len + 1);
+        sg_cal_instrument_init(&s->ins);
+        s->st = SG_ENOMEM; /* not loaded yet */
+        c->slots[c->n_slots] = s;
+        index_put(c->index, c->cap_index, id, c->n_slots);
+        c->n_slots++;
+    }
+    if (s->st == SG_ENOMEM) { /* first use, or the last load ran out of memory */
+        sg_cal_instrument_release(&s->ins);
+        sg_error_clear(&s->err);
+        s->st = sg_calibio_load(c->register_dir, id, &s->ins, &s->err);
+    }
+    *out = s;
+    return SG_OK;
+}
+
+static bool slot_events(struct sg_calibio_slot *s)
+{
+    if (s->events == NULL && s->ins.n_events > 0)
+        s->events = calloc(s->ins.n_events, sizeof *s->events);
+    return s->events != NULL;
+}
+
+static bool same_bits(double a, double b)
+{
+    return memcmp(&a, &b, sizeof a) == 0;
+}
+
+/* sg_cal_evaluate(ins, event, part, area_mm2), computed once per slot. *res
+ * stays valid as long as the cache. */
+static enum sg_status slot_eval(struct sg_calibio_slot *s, size_t event, enum sg_cal_part part, double area_mm2,
+                                const struct sg_cal_result **res, struct sg_error *err)
+{
+    if (!slot_events(s))
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+    struct event_memo *em = &s->events[event];
+    for (size_t i = 0; i < em->n; i++) {
+        const struct eval_memo *m = &em->v[i];
+        if (m->part != part || !same_bits(m->area_mm2, area_mm2))
+            continue;
+        if (m->st != SG_OK) {
+            if (err != NULL)
+                *err = *m->err;
+            return m->st;
+        }
+        *res = m->res;
+        return SG_OK;
+    }
+    if (em->n == em->cap) {
+        const size_t cap = em->cap ? 2 * em->cap : 4;
+        struct eval_memo *v = realloc(em->v, cap * sizeof *v);
+        if (v == NULL)
+            return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+        em->v = v;
+        em->cap = cap;
+    }
+    struct sg_cal_result *r = malloc(sizeof *r);
+    if (r == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+    struct sg_error e;
+    sg_error_clear(&e);
+    const enum sg_status st = sg_cal_evaluate(&s->ins, &s->ins.events[event], part, area_mm2, r, &e);
+    struct eval_memo m = {.part = part, .area_mm2 = area_mm2, .st = st, .err = NULL, .res = r};
+    if (st != SG_OK) {
+        free(r);
+        m.res = NULL;
+        if (err != NULL)
+            *err = e;
+        if (st == SG_ENOMEM || (m.err = malloc(sizeof *m.err)) == NULL)
+            return st; /* not kept: tried again next time */
+        *m.err = e;
+        em->v[em->n++] = m;
+        return st;
+    }
+    em->v[em->n++] = m;
+    *res = r;
+    return SG_OK;
+}
+
+static enum sg_status status_eval(void *ctx, size_t event, enum sg_cal_part part, const struct sg_cal_result **res,
+                                  struct sg_error *err)
+{
+    return slot_eval(ctx, event, part, (double)NAN, res, err);
+}
+
+static size_t day_hash(struct sg_date d, size_t cap)
+{
+    const uint64_t v = ((uint64_t)(unsigned)d.year << 9) ^ ((uint64_t)(unsigned)d.month << 5) ^ (unsigned)d.day;
+    return (size_t)((v * GOLDEN_RATIO_64) >> 32) & (cap - 1);
+}
+
+static bool same_date(struct sg_date a, struct sg_date b)
+{
+    return a.year == b.year && a.month == b.month && a.day == b.day;
+}
+
+/* The index position of date d: where it is, or the empty one where it goes. */
+static size_t day_find(const struct sg_calibio_slot *s, struct sg_date d)
+{
+    size_t at = day_hash(d, s->cap_day_index);
+    while (s->day_index[at] != 0 && !same_date(s->days[s->day_index[at] - 1].date, d))
+        at = (at + 1) & (s->cap_day_index - 1);
+    return at;
+}
+
+static char *dup_text(const char *s)
+{
+    const size_t n = strlen(s);
+    char *t = malloc(n + 1);
+    if (t != NULL)
+        memcpy(t, s, n + 1);
+    return t;
+}
+
+/* Room for one more date in the slot's memo and index. */
+static bool day_room(struct sg_calibio_slot *s)
+{
+    if (s->n_days == s->cap_days) {
+        const size_t cap = s->cap_days ? 2 * s->cap_days : CACHE_TABLE_MIN;
+        if (cap > UINT32_MAX - 1)
+            return false;
+        struct day_memo *days = realloc(s->days, cap * sizeof *days);
+        if (days == NULL)
+            return false;
+        s->days = days;
+        s->cap_days = cap;
+    }
+    if (2 * (s->n_days + 1) > s->cap_day_index) {
+        const size_t cap = s->cap_day_index ? 2 * s->cap_day_index : 2 * CACHE_TABLE_MIN;
+        uint32_t *index = calloc(cap, sizeof *index);
+        if (index == NULL)
+            return false;
+        free(s->day_index);
+        s->day_index = index;
+        s->cap_day_index = cap;
+        for (size_t i = 0; i < s->n_days; i++)
+            s->day_index[day_find(s, s->days[i].date)] = (uint32_t)i + 1;
+    }
+    return true;
+}
+
+/* The slot's status on date d (sg_cal_status, evaluations from the slot),
+ * computed once per date. SG_ENOMEM (err set) if it cannot be computed or
+ * kept; otherwise SG_OK with *out (whose st is sg_cal_status's). */
+static enum sg_status slot_day(struct sg_calibio_slot *s, struct sg_date d, const struct day_memo **out,
+                               struct sg_error *err)
+{
+    if (s->cap_day_index > 0) {
+        const uint32_t i = s->day_index[day_find(s, d)];
+        if (i != 0) {
+            *out = &s->days[i - 1];
+            return SG_OK;
+        }
+    }
+    if (!day_room(s))
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+    struct sg_cal_status stat;
+    struct sg_error e;
+    sg_error_clear(&e);
+    const enum sg_status st = sg_cal_status_with(&s->ins, d, 0, status_eval, s, &stat, &e);
+    if (st == SG_ENOMEM) {
+        if (err != NULL)
+            *err = e;
+        return st;
+    }
+    struct day_memo m = {.date = d, .due = stat.due, .st = (unsigned char)st, .state = (unsigned char)stat.state,
+                         .has_due = stat.has_due, .text = NULL};
+    for (size_t p = 0; p < SG_CAL_PART_COUNT; p++)
+        m.entry[p] = (int32_t)stat.entry[p];
+    const char *text = st != SG_OK                                                           ? e.msg
+                       : stat.state == SG_CAL_OUT_OF_SERVICE || stat.state == SG_CAL_RETIRED ? stat.reason
+                                                                                             : NULL;
+    if (text != NULL && (m.text = dup_text(text)) == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+    s->day_index[day_find(s, d)] = (uint32_t)s->n_days + 1;
+    s->days[s->n_days] = m;
+    *out = &s->days[s->n_days++];
+    return SG_OK;
+}
+
 /* ---- resolution for a test record ------------------------------------------------------- */
 
 struct resolver {
-    const char *dir;
+    struct sg_calibio_cache *cache;
     const struct sg_record *rec;
     const char *ov_id, *ov_entry;
     struct sg_constants *k;
@@ -1261,15 +1595,25 @@ struct resolver {
     size_t n_used;
 };
 
-static void add_used(struct resolver *rv, const struct sg_cal_instrument *ins, long index)
+static void add_used(struct resolver *rv, struct sg_calibio_slot *s, long index)
 {
-    char label[96];
-    sg_cal_entry_label(ins, (size_t)index, label, sizeof label);
+    char own[96];
+    const char *label = own;
+    if (slot_events(s)) {
+        struct event_memo *em = &s->events[index];
+        if (!em->has_label) {
+            sg_cal_entry_label(&s->ins, (size_t)index, em->label, sizeof em->label);
+            em->has_label = true;
+        }
+        label = em->label;
+    } else {
+        sg_cal_entry_label(&s->ins, (size_t)index, own, sizeof own);
+    }
     for (size_t i = 0; i < rv->n_used; i++)
         if (strcmp(rv->used[i], label) == 0)
             return;
     if (rv->n_used < sizeof rv->used / sizeof rv->used[0])
-        memcpy(rv->used[rv->n_used++], label, sizeof label);
+        memcpy(rv->used[rv->n_used++], label, sizeof own);
 }
 
 static void add_note(struct sg_constants *k, const char *name, enum sg_severity sev, const char *fmt, ...)
@@ -1291,31 +1635,42 @@ static void add_note(struct sg_constants *k, const char *name, enum sg_severity 
     k->n_notes++;
 }
 
-/* Loads instrument id (named at pos in the record) of the expected kind and
- * finds its entries in force on the test date (or the override entry). */
+/* Looks up instrument id (named at pos in the record) of the expected kind
+ * and finds its entries in force on the test date (or the override entry). */
 static enum sg_status resolve_one(struct resolver *rv, const char *id, struct sg_srcpos pos, enum sg_cal_kind kind,
-                                  const char *role, struct sg_cal_instrument *ins, struct sg_cal_status *stat)
+                                  const char *role, struct sg_calibio_slot **slot, long entry[SG_CAL_PART_COUNT])
 {
     const unsigned line = pos.line ? pos.line : 1, col = pos.col ? pos.col : 1;
     struct sg_error e;
     sg_error_clear(&e);
-    enum sg_status st = sg_calibio_load(rv->dir, id, ins, &e);
-    if (st == SG_ENOTFOUND || (st != SG_OK && e.line == 0))
+    struct sg_calibio_slot *s = NULL;
+    enum sg_status st = cache_slot(rv->cache, id, &s, &e);
+    if (st != SG_OK)
         return sg_error_set(rv->err, st, line, col, "%s", e.msg);
+    st = s->st;
+    if (st == SG_ENOTFOUND || (st != SG_OK && s->err.line == 0))
+        return sg_error_set(rv->err, st, line, col, "%s", s->err.msg);
     if (st != SG_OK) {
         char path[4096];
-        (void)sg_calibio_path(rv->dir, id, path, sizeof path);
+        (void)sg_calibio_path(rv->cache->register_dir, id, path, sizeof path);
         return sg_error_set(rv->err, st, line, col, "register file %s:%u:%u: %.300s (fix the register file)", path,
-                            e.line, e.col ? e.col : 1, e.msg);
+                            s->err.line, s->err.col ? s->err.col : 1, s->err.msg);
     }
+    const struct sg_cal_instrument *ins = &s->ins;
     if (ins->kind != kind)
         return sg_error_set(rv->err, SG_EINVAL, line, col,
                             "'%s' is a %s in the calibration register, not a %s (check the record's '%s' row)", id,
                             sg_cal_kind_name(ins->kind), sg_cal_kind_name(kind), role);
     char date[11];
     sg_date_format(rv->rec->date, date);
-    if ((st = sg_cal_status(ins, rv->rec->date, 0, stat, &e)) != SG_OK)
+    const struct day_memo *day = NULL;
+    if ((st = slot_day(s, rv->rec->date, &day, &e)) != SG_OK)
         return sg_error_set(rv->err, st, line, col, "instrument '%s': %.300s", id, e.msg);
+    if (day->st != SG_OK)
+        return sg_error_set(rv->err, (enum sg_status)day->st, line, col, "instrument '%s': %.300s", id, day->text);
+    for (size_t p = 0; p < SG_CAL_PART_COUNT; p++)
+        entry[p] = day->entry[p];
+    *slot = s;
     if (rv->ov_id != NULL && strcmp(rv->ov_id, id) == 0) {
         size_t idx = 0;
         if ((st = sg_cal_find_entry(ins, rv->ov_entry, &idx, &e)) != SG_OK)
@@ -1323,26 +1678,25 @@ static enum sg_status resolve_one(struct resolver *rv, const char *id, struct sg
         const unsigned parts = sg_cal_event_parts(&ins->events[idx]);
         for (unsigned p = 0; p < SG_CAL_PART_COUNT; p++)
             if (parts & (1u << p)) {
-                struct sg_cal_result res;
-                if ((st = sg_cal_evaluate(ins, &ins->events[idx], (enum sg_cal_part)p, (double)NAN, &res, &e)) != SG_OK)
+                const struct sg_cal_result *res = NULL;
+                if ((st = slot_eval(s, idx, (enum sg_cal_part)p, (double)NAN, &res, &e)) != SG_OK)
                     return sg_error_set(rv->err, st, line, col, "instrument '%s': %.300s", id, e.msg);
-                if (!res.accepted)
+                if (!res->accepted)
                     return sg_error_set(rv->err, SG_EINVAL, line, col,
                                         "the %s entry %s@%s was %.200s (choose an accepted entry)",
-                                        sg_cal_part_name((enum sg_cal_part)p), id, rv->ov_entry, res.decision);
-                stat->entry[p] = (long)idx;
+                                        sg_cal_part_name((enum sg_cal_part)p), id, rv->ov_entry, res->decision);
+                entry[p] = (long)idx;
             }
-        stat->state = SG_CAL_IN_SERVICE;
         return SG_OK;
     }
-    if (stat->state == SG_CAL_OUT_OF_SERVICE || stat->state == SG_CAL_RETIRED)
+    if (day->state == SG_CAL_OUT_OF_SERVICE || day->state == SG_CAL_RETIRED)
         return sg_error_set(rv->err, SG_EINVAL, line, col,
                             "%s '%s' has no calibration in force on the test date %s: %.200s (calibrate it, or "
                             "use an instrument in service)",
-                            sg_cal_kind_name(kind), id, date, stat->reason);
-    if (stat->state == SG_CAL_OVERDUE && stat->has_due) {
+                            sg_cal_kind_name(kind), id, date, day->text);
+    if (day->state == SG_CAL_OVERDUE && day->has_due) {
         char due[11];
-        sg_date_format(stat->due, due);
+        sg_date_format(day->due, due);
         add_note(rv->k, "calibration_overdue", SG_SEVERITY_WARNING,
                  "%s '%s': calibration due %s, before the test date %s (recalibrate it)", sg_cal_kind_name(kind), id,
                  due, date);
@@ -1350,35 +1704,35 @@ static enum sg_status resolve_one(struct resolver *rv, const char *id, struct sg
     return SG_OK;
 }
 
-static enum sg_status eval_in_force(struct resolver *rv, const struct sg_cal_instrument *ins,
-                                    const struct sg_cal_status *stat, enum sg_cal_part part, double area_mm2,
-                                    struct sg_srcpos pos, struct sg_cal_result *res)
+static enum sg_status eval_in_force(struct resolver *rv, struct sg_calibio_slot *s,
+                                    const long entry[SG_CAL_PART_COUNT], enum sg_cal_part part, double area_mm2,
+                                    struct sg_srcpos pos, const struct sg_cal_result **res)
 {
+    const struct sg_cal_instrument *ins = &s->ins;
     struct sg_error e;
-    if (stat->entry[part] < 0)
+    if (entry[part] < 0)
         return sg_error_set(rv->err, SG_EINVAL, pos.line ? pos.line : 1, pos.col ? pos.col : 1,
                             "%s '%s' has no %s calibration to apply (calibrate it)", sg_cal_kind_name(ins->kind),
                             ins->id, sg_cal_part_name(part));
-    const enum sg_status st = sg_cal_evaluate(ins, &ins->events[stat->entry[part]], part, area_mm2, res, &e);
+    const enum sg_status st = slot_eval(s, (size_t)entry[part], part, area_mm2, res, &e);
     if (st != SG_OK)
         return sg_error_set(rv->err, st, pos.line ? pos.line : 1, pos.col ? pos.col : 1,
                             "instrument '%s', %s entry: %.300s", ins->id, sg_cal_part_name(part), e.msg);
-    add_used(rv, ins, stat->entry[part]);
+    add_used(rv, s, entry[part]);
     return SG_OK;
 }
 
 static enum sg_status resolve_cylinder(struct resolver *rv, const char *id, struct sg_srcpos pos, double *area_mm2)
 {
-    struct sg_cal_instrument ins;
-    struct sg_cal_status stat;
-    enum sg_status st = resolve_one(rv, id, pos, SG_CAL_CYLINDER, "cylinder", &ins, &stat);
+    struct sg_calibio_slot *s = NULL;
+    long entry[SG_CAL_PART_COUNT];
+    enum sg_status st = resolve_one(rv, id, pos, SG_CAL_CYLINDER, "cylinder", &s, entry);
     if (st == SG_OK) {
-        struct sg_cal_result res;
-        st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_AREA, (double)NAN, pos, &res);
+        const struct sg_cal_result *res = NULL;
+        st = eval_in_force(rv, s, entry, SG_CAL_PART_AREA, (double)NAN, pos, &res);
         if (st == SG_OK)
-            *area_mm2 = res.value;
+            *area_mm2 = res->value;
     }
-    sg_cal_instrument_release(&ins);
     return st;
 }
 
@@ -1386,96 +1740,113 @@ static enum sg_status resolve_hydrometer(struct resolver *rv)
 {
     const struct sg_record *rec = rv->rec;
     struct sg_constants *k = rv->k;
-    struct sg_cal_instrument ins;
-    struct sg_cal_status stat;
-    struct sg_cal_result res;
-    enum sg_status st = resolve_one(rv, rec->hydrometer, rec->pos_hydrometer, SG_CAL_HYDROMETER, "hydrometer", &ins,
-                                    &stat);
+    struct sg_calibio_slot *s = NULL;
+    long entry[SG_CAL_PART_COUNT];
+    const struct sg_cal_result *res = NULL;
+    enum sg_status st = resolve_one(rv, rec->hydrometer, rec->pos_hydrometer, SG_CAL_HYDROMETER, "hydrometer", &s,
+                                    entry);
     if (st != SG_OK)
-        goto cleanup;
+        return st;
+    const struct sg_cal_instrument *ins = &s->ins;
     const struct sg_srcpos pos = rec->pos_hydrometer;
-    if (rec->scale != SG_SCALE_NONE && rec->scale != ins.scale) {
-        st = sg_error_set(rv->err, SG_EINVAL, rec->pos_scale.line ? rec->pos_scale.line : 1, 1,
-                          "reading_scale '%s' does not match hydrometer '%s', whose scale is '%s' in the register "
-                          "(correct the record's reading_scale or its hydrometer)",
-                          sg_scale_name(rec->scale), ins.id, sg_scale_name(ins.scale));
-        goto cleanup;
-    }
-    if (stat.entry[SG_CAL_PART_DEPTH] < 0 || stat.entry[SG_CAL_PART_MENISCUS] < 0) {
-        st = sg_error_set(rv->err, SG_EINVAL, pos.line ? pos.line : 1, pos.col ? pos.col : 1,
-                          "hydrometer '%s' has no %s calibration to apply (calibrate it)", ins.id,
-                          stat.entry[SG_CAL_PART_DEPTH] < 0 ? "depth" : "meniscus");
-        goto cleanup;
-    }
+    if (rec->scale != SG_SCALE_NONE && rec->scale != ins->scale)
+        return sg_error_set(rv->err, SG_EINVAL, rec->pos_scale.line ? rec->pos_scale.line : 1, 1,
+                            "reading_scale '%s' does not match hydrometer '%s', whose scale is '%s' in the register "
+                            "(correct the record's reading_scale or its hydrometer)",
+                            sg_scale_name(rec->scale), ins->id, sg_scale_name(ins->scale));
+    if (entry[SG_CAL_PART_DEPTH] < 0 || entry[SG_CAL_PART_MENISCUS] < 0)
+        return sg_error_set(rv->err, SG_EINVAL, pos.line ? pos.line : 1, pos.col ? pos.col : 1,
+                            "hydrometer '%s' has no %s calibration to apply (calibrate it)", ins->id,
+                            entry[SG_CAL_PART_DEPTH] < 0 ? "depth" : "meniscus");
     /* Depth: the hydrometer's line, with the cross-section of the cylinder in use. */
-    const struct sg_cal_event *dev = &ins.events[stat.entry[SG_CAL_PART_DEPTH]];
+    const struct sg_cal_event *dev = &ins->events[entry[SG_CAL_PART_DEPTH]];
     const char *cyl = rec->cylinder[0] ? rec->cylinder : dev->cylinder;
     const struct sg_srcpos cpos = rec->cylinder[0] ? rec->pos_cylinder : pos;
     double area = (double)NAN;
     /* The hydrometer's entries are named before its cylinder's. */
-    add_used(rv, &ins, stat.entry[SG_CAL_PART_DEPTH]);
-    add_used(rv, &ins, stat.entry[SG_CAL_PART_MENISCUS]);
-    if (stat.entry[SG_CAL_PART_BLANK] >= 0)
-        add_used(rv, &ins, stat.entry[SG_CAL_PART_BLANK]);
-    if ((st = resolve_cylinder(rv, cyl, cpos, &area)) != SG_OK)
-        goto cleanup;
-    if ((st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_DEPTH, area, pos, &res)) != SG_OK)
-        goto cleanup;
+    add_used(rv, s, entry[SG_CAL_PART_DEPTH]);
+    add_used(rv, s, entry[SG_CAL_PART_MENISCUS]);
+    if (entry[SG_CAL_PART_BLANK] >= 0)
+        add_used(rv, s, entry[SG_CAL_PART_BLANK]);
+    if ((st = resolve_cylinder(rv, cyl, cpos, &area)) != SG_OK ||
+        (st = eval_in_force(rv, s, entry, SG_CAL_PART_DEPTH, area, pos, &res)) != SG_OK)
+        return st;
     k->has_depth_line = true;
-    k->depth_at_zero_mm = res.line.c0;
-    k->depth_per_unit_mm = res.line.c1;
-    k->depth_cov[0] = res.line.cov00;
-    k->depth_cov[1] = res.line.cov01;
-    k->depth_cov[2] = res.line.cov11;
+    k->depth_at_zero_mm = res->line.c0;
+    k->depth_per_unit_mm = res->line.c1;
+    k->depth_cov[0] = res->line.cov00;
+    k->depth_cov[1] = res->line.cov01;
+    k->depth_cov[2] = res->line.cov11;
     if (strcmp(cyl, dev->cylinder) != 0)
         add_note(k, "depth_cylinder_differs", SG_SEVERITY_INFO,
                  "hydrometer '%s' was calibrated in cylinder '%s'; its depth line uses the cross-section of '%s'",
-                 ins.id, dev->cylinder, cyl);
-    if ((st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_MENISCUS, (double)NAN, pos, &res)) != SG_OK)
-        goto cleanup;
-    k->meniscus_correction = res.value;
-    k->meniscus_u = res.u;
-    if (stat.entry[SG_CAL_PART_BLANK] >= 0) {
-        if ((st = eval_in_force(rv, &ins, &stat, SG_CAL_PART_BLANK, (double)NAN, pos, &res)) != SG_OK)
-            goto cleanup;
+                 ins->id, dev->cylinder, cyl);
+    if ((st = eval_in_force(rv, s, entry, SG_CAL_PART_MENISCUS, (double)NAN, pos, &res)) != SG_OK)
+        return st;
+    k->meniscus_correction = res->value;
+    k->meniscus_u = res->u;
+    if (entry[SG_CAL_PART_BLANK] >= 0) {
+        if ((st = eval_in_force(rv, s, entry, SG_CAL_PART_BLANK, (double)NAN, pos, &res)) != SG_OK)
+            return st;
         k->has_blank_line = true;
-        k->blank_c0 = res.line.c0;
-        k->blank_c1 = res.line.c1;
-        k->blank_tmin_c = res.xmin;
-        k->blank_tmax_c = res.xmax;
-        k->blank_u = res.u;
+        k->blank_c0 = res->line.c0;
+        k->blank_c1 = res->line.c1;
+        k->blank_tmin_c = res->xmin;
+        k->blank_tmax_c = res->xmax;
+        k->blank_u = res->u;
         k->has_blank_const = false; /* the register's blank line replaces an inline composite correction */
     }
-    if (ins.has_range) {
+    if (ins->has_range) {
         k->has_scale_range = true;
-        k->scale_min = ins.range_min;
-        k->scale_max = ins.range_max;
+        k->scale_min = ins->range_min;
+        k->scale_max = ins->range_max;
     }
-cleanup:
-    sg_cal_instrument_release(&ins);
-    return st;
+    return SG_OK;
 }
 
 static enum sg_status resolve_simple(struct resolver *rv, const char *id, struct sg_srcpos pos, enum sg_cal_kind kind,
-                                     const char *role, enum sg_cal_part part, struct sg_cal_result *res)
+                                     const char *role, enum sg_cal_part part, const struct sg_cal_result **res)
 {
-    struct sg_cal_instrument ins;
-    struct sg_cal_status stat;
-    enum sg_status st = resolve_one(rv, id, pos, kind, role, &ins, &stat);
+    struct sg_calibio_slot *s = NULL;
+    long entry[SG_CAL_PART_COUNT];
+    enum sg_status st = resolve_one(rv, id, pos, kind, role, &s, entry);
     if (st == SG_OK)
-        st = eval_in_force(rv, &ins, &stat, part, (double)NAN, pos, res);
-    sg_cal_instrument_release(&ins);
+        st = eval_in_force(rv, s, entry, part, (double)NAN, pos, res);
     return st;
 }
 
-enum sg_status sg_calibio_resolve_with(const char *register_dir, const struct sg_record *rec,
-                                       const char *override_id, const char *override_entry,
-                                       struct sg_constants *k, struct sg_error *err)
+/* k->calibration_used = the labels joined by ';', cut where snprintf would
+ * cut them. */
+static void join_used(const struct resolver *rv, struct sg_constants *k)
+{
+    char *out = k->calibration_used;
+    size_t at = 0, room = sizeof k->calibration_used - 1; /* characters that still fit */
+    for (size_t i = 0; i < rv->n_used; i++) {
+        const char *piece[2] = {i ? ";" : "", rv->used[i]};
+        const size_t room_before = room;
+        size_t n = 0;
+        for (size_t j = 0; j < 2; j++) {
+            const size_t len = strlen(piece[j]), take = len < room ? len : room;
+            memcpy(out + at, piece[j], take);
+            at += take;
+            room -= take;
+            n += len;
+        }
+        out[at] = '\0';
+        if (n > room_before)
+            break;
+    }
+    out[at] = '\0';
+}
+
+enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
+                                              const char *override_id, const char *override_entry,
+                                              struct sg_constants *k, struct sg_error *err)
 {
     sg_constants_from_record(rec, k);
     sg_error_clear(err);
-    struct resolver rv = {.dir = register_dir, .rec = rec, .ov_id = override_id, .ov_entry = override_entry,
-                          .k = k, .err = err, .n_used = 0};
+    struct resolver rv = {.cache = cache, .rec = rec, .ov_id = override_id, .ov_entry = override_entry, .k = k,
+                          .err = err, .n_used = 0};
     const bool named = rec->hydrometer[0] || rec->cylinder[0] || rec->thermometer[0] || rec->pipette_id[0];
     if (!named)
         return SG_OK;
@@ -1488,15 +1859,19 @@ enum sg_status sg_calibio_resolve_with(const char *register_dir, const struct sg
         return sg_error_set(err, SG_EINVAL, line, col,
                             "the record names register instruments but no test date (give test,date so the "
                             "calibration in force can be chosen)");
-    struct stat sb;
-    if (register_dir == NULL || stat(register_dir, &sb) != 0 || !S_ISDIR(sb.st_mode))
+    const char *register_dir = cache->register_dir;
+    if (cache->dir_state == 0) {
+        struct stat sb;
+        cache->dir_state = register_dir != NULL && stat(register_dir, &sb) == 0 && S_ISDIR(sb.st_mode) ? 1 : -1;
+    }
+    if (cache->dir_state < 0)
         return sg_error_set(err, SG_ENOTFOUND, line, col,
                             "the calibration register folder '%s' does not exist, and the record names register "
                             "instruments (give --calibration DIR, or drop the instrument IDs and give the "
                             "constants inline)",
                             register_dir ? register_dir : "");
     enum sg_status st = SG_OK;
-    struct sg_cal_result res;
+    const struct sg_cal_result *res = NULL;
     if (rec->hydrometer[0])
         st = resolve_hydrometer(&rv);
     else if (rec->cylinder[0]) {
@@ -1507,31 +1882,39 @@ enum sg_status sg_calibio_resolve_with(const char *register_dir, const struct sg
         st = resolve_simple(&rv, rec->thermometer, rec->pos_thermometer, SG_CAL_THERMOMETER, "thermometer",
                             SG_CAL_PART_OFFSET, &res);
         if (st == SG_OK)
-            k->thermometer_offset_c = res.value;
+            k->thermometer_offset_c = res->value;
     }
     if (st == SG_OK && rec->pipette_id[0]) {
         st = resolve_simple(&rv, rec->pipette_id, rec->pos_pipette_id, SG_CAL_PIPETTE, "pipette_id",
                             SG_CAL_PART_VOLUME, &res);
         if (st == SG_OK) {
             k->has_pipette_volume = true;
-            k->pipette_volume_ml = res.value;
-            k->pipette_volume_u_ml = res.u;
+            k->pipette_volume_ml = res->value;
+            k->pipette_volume_u_ml = res->u;
         }
     }
     if (st != SG_OK)
         return st;
-    if (rv.n_used > 0) {
-        size_t at = 0;
-        k->calibration_used[0] = '\0';
-        for (size_t i = 0; i < rv.n_used; i++) {
-            const int n = snprintf(k->calibration_used + at, sizeof k->calibration_used - at, "%s%s", i ? ";" : "",
-                                   rv.used[i]);
-            if (n < 0 || (size_t)n >= sizeof k->calibration_used - at)
-                break;
-            at += (size_t)n;
-        }
-    }
+    if (rv.n_used > 0)
+        join_used(&rv, k);
     return SG_OK;
+}
+
+enum sg_status sg_calibio_resolve_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
+                                         struct sg_constants *k, struct sg_error *err)
+{
+    return sg_calibio_resolve_with_cached(cache, rec, NULL, NULL, k, err);
+}
+
+enum sg_status sg_calibio_resolve_with(const char *register_dir, const struct sg_record *rec,
+                                       const char *override_id, const char *override_entry,
+                                       struct sg_constants *k, struct sg_error *err)
+{
+    struct sg_calibio_cache cache;
+    sg_calibio_cache_init(&cache, register_dir);
+    const enum sg_status st = sg_calibio_resolve_with_cached(&cache, rec, override_id, override_entry, k, err);
+    sg_calibio_cache_release(&cache);
+    return st;
 }
 
 enum sg_status sg_calibio_resolve(const char *register_dir, const struct sg_record *rec, struct sg_constants *k,
