@@ -769,12 +769,14 @@ static int cal_impact(const struct cal_opts *o)
     sg_result_init(&ra);
     sg_result_init(&rb);
     const struct sg_reduce_options opt = sg_reduce_options_default();
+    struct sg_calibio_cache cal;
+    sg_calibio_cache_init(&cal, o->register_dir);
     for (size_t i = 0; i < files.n; i++) {
         struct sg_record rec;
         sg_record_init(&rec);
         struct sg_constants ka, kb;
         if (sg_recordio_load(files.items[i], &rec, NULL, &err) != SG_OK ||
-            sg_calibio_resolve(o->register_dir, &rec, &ka, &err) != SG_OK) {
+            sg_calibio_resolve_cached(&cal, &rec, &ka, &err) != SG_OK) {
             skipped++;
             sg_record_release(&rec);
             continue;
@@ -784,7 +786,7 @@ static int cal_impact(const struct cal_opts *o)
             continue;
         }
         affected++;
-        if ((st = sg_calibio_resolve_with(o->register_dir, &rec, id, to_entry, &kb, &err)) != SG_OK ||
+        if ((st = sg_calibio_resolve_with_cached(&cal, &rec, id, to_entry, &kb, &err)) != SG_OK ||
             (st = sg_reduce(&rec, &ka, &opt, &ra, &err)) != SG_OK ||
             (st = sg_reduce(&rec, &kb, &opt, &rb, &err)) != SG_OK) {
             sg_cli_report(files.items[i], &err);
@@ -794,6 +796,7 @@ static int cal_impact(const struct cal_opts *o)
         }
         sg_record_release(&rec);
     }
+    sg_calibio_cache_release(&cal);
     sg_result_release(&ra);
     sg_result_release(&rb);
     fprintf(stderr, "sedgrade: %zu of %zu files in %s were reduced with %s", affected, files.n, o->folder,

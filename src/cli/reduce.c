@@ -491,6 +491,7 @@ struct worker_state {
     FILE *spill;
     size_t spill_index;
     off_t spill_end;
+    struct sg_calibio_cache cal; /* this worker's register cache (no locks) */
 };
 
 /* Opens the worker's spill file on first use. */
@@ -566,7 +567,7 @@ static void run_job(struct batch *b, struct worker_state *w, struct job *job, st
     sg_record_init(rec);
     enum sg_status st = sg_recordio_load(job->path, rec, NULL, &err);
     if (st == SG_OK)
-        st = sg_calibio_resolve(cfg->register_dir, rec, &k, &err);
+        st = sg_calibio_resolve_cached(&w->cal, rec, &k, &err);
     if (st == SG_OK)
         st = sg_reduce(rec, &k, &cfg->opt, res, &err);
     if (st == SG_OK && cfg->mc_draws > 0) {
@@ -624,6 +625,7 @@ static void *worker(void *arg)
     struct sg_result res;
     struct worker_state w = {0};
     w.iobuf = malloc(WRITE_BUFFER_SIZE);
+    sg_calibio_cache_init(&w.cal, b->cfg->register_dir);
     sg_record_init(&rec);
     sg_result_init(&res);
     for (;;) {
@@ -640,6 +642,7 @@ static void *worker(void *arg)
     free(w.schema_names);
     free(w.buf);
     free(w.iobuf);
+    sg_calibio_cache_release(&w.cal);
     return NULL;
 }
 
@@ -1113,6 +1116,8 @@ int sg_cli_check(int argc, char **argv)
         return SG_EXIT_IO;
     }
     int rc = problems ? SG_EXIT_INPUT : SG_EXIT_OK;
+    struct sg_calibio_cache cal;
+    sg_calibio_cache_init(&cal, register_dir);
     for (size_t i = 0; i < files.n; i++) {
         struct sg_record rec;
         struct sg_diag_list diags = {0};
@@ -1122,7 +1127,7 @@ int sg_cli_check(int argc, char **argv)
         enum sg_status st = sg_recordio_load(files.items[i], &rec, &diags, &err);
         if (st == SG_OK) {
             struct sg_constants k;
-            st = sg_calibio_resolve(register_dir, &rec, &k, &err);
+            st = sg_calibio_resolve_cached(&cal, &rec, &k, &err);
             if (st != SG_OK)
                 (void)sg_diag_add(&diags, &err);
         }
@@ -1142,6 +1147,7 @@ int sg_cli_check(int argc, char **argv)
         sg_diag_release(&diags);
         sg_record_release(&rec);
     }
+    sg_calibio_cache_release(&cal);
     path_list_release(&files);
     return rc;
 }
