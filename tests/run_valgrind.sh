@@ -12,7 +12,8 @@
 #   valgrind, runs one test at a time, which keeps the logs readable),
 #   VALGRIND_TIMEOUT (seconds per program, default 3600),
 #   VALGRIND_KEEP_LOGS=1 (keep the log folder and print its path),
-#   VALGRIND_ONLY (a pattern: run only test programs whose name matches it).
+#   VALGRIND_ONLY (a pattern: run only the test programs whose name contains
+#   it; "cli" names the golden CLI cases).
 set -u
 build=${1:-build}
 here=$(cd "$(dirname "$0")/.." && pwd)
@@ -86,7 +87,9 @@ done
 # runner's SG_CLI_WRAP. The wrapper keeps the program's own exit status (no
 # --error-exitcode) so the cases still check it; memory errors and leaks are
 # found in the logs.
-if [ -z "${VALGRIND_ONLY:-}" ] && [ -f "$here/tests/cli/run.sh" ] && [ -x "$build/sedgrade" ]; then
+only_cli=yes
+[ -n "${VALGRIND_ONLY:-}" ] && case cli in *${VALGRIND_ONLY}*) ;; *) only_cli=no ;; esac
+if [ "$only_cli" = yes ] && [ -f "$here/tests/cli/run.sh" ] && [ -x "$build/sedgrade" ]; then
   dir="$logs/cli"; mkdir -p "$dir"
   wrap="valgrind"
   for o in "${opts[@]}"; do
