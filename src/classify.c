@@ -257,7 +257,7 @@ struct ctx {
     struct sg_result *res;
     struct sg_error *err;
     const char *interp_word; /* "log-linear" or "monotone (Steffen)" */
-    bool quiet;              /* values only (opt->values_only): empty notes, nothing formatted */
+    bool quiet;              /* opt->values_only or skip_notes: empty notes, nothing formatted */
     /* the curve at each bound: percent finer, status, and (not quiet) why not */
     double p[N_BOUNDS];
     enum sg_status pst[N_BOUNDS];
@@ -854,7 +854,7 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     x.res = res;
     x.err = err;
     x.interp_word = curve->impl != NULL ? "monotone (Steffen)" : "log-linear";
-    x.quiet = opt != NULL && opt->values_only;
+    x.quiet = opt != NULL && (opt->values_only || opt->skip_notes);
     enum sg_status st;
 
     static const struct {

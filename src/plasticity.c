@@ -14,6 +14,12 @@
 #define USCS_GRAVEL_COBBLE_MM 75.0
 #define USCS_SAND_GRAVEL_MM 4.75
 #define USCS_FINES_MM 0.075
+/* log10 of those sizes, correctly rounded (checked against 60-digit decimal
+ * arithmetic; what log10() returns for them), so that no logarithm is taken
+ * per reading of the curve. */
+#define LOG10_75 1.8750612633917
+#define LOG10_4_75 0.6766936096248666
+#define LOG10_0_075 (-1.1249387366083)
 /* D2487 grading limits (METHODS.md 8.2). */
 #define USCS_GW_CU_MIN 4.0
 #define USCS_SW_CU_MIN 6.0
@@ -177,7 +183,8 @@ const char *sg_plasticity_activity_class(double activity)
 struct ctx {
     struct sg_result *res;
     struct sg_error *err;
-    bool quiet; /* values only: no notes, no flags */
+    bool quiet;    /* values only: no flags (and no notes) */
+    bool no_notes; /* values only or skip_notes: empty notes */
 };
 
 static enum sg_status nomem(struct ctx *x)
@@ -187,17 +194,17 @@ static enum sg_status nomem(struct ctx *x)
 
 static enum sg_status value(struct ctx *x, const char *name, const char *unit, double v, const char *note)
 {
-    return sg_result_add_value(x->res, name, unit, v, x->quiet ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    return sg_result_add_value(x->res, name, unit, v, x->no_notes ? "" : note) == SG_OK ? SG_OK : nomem(x);
 }
 
 static enum sg_status undet(struct ctx *x, const char *name, const char *unit, const char *note)
 {
-    return sg_result_add_undetermined(x->res, name, unit, x->quiet ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    return sg_result_add_undetermined(x->res, name, unit, x->no_notes ? "" : note) == SG_OK ? SG_OK : nomem(x);
 }
 
 static enum sg_status text(struct ctx *x, const char *name, const char *t, const char *note)
 {
-    return sg_result_add_text(x->res, name, t, x->quiet ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    return sg_result_add_text(x->res, name, t, x->no_notes ? "" : note) == SG_OK ? SG_OK : nomem(x);
 }
 
 #define FLAG(x, name, sev, ...)                                                                    \
@@ -216,11 +223,11 @@ static void uscs_fractions(const struct sg_curve *c, double *gravel, double *san
 {
     double p75, p475, p0075;
     *gravel = *sand = *fines = NAN;
-    if (sg_curve_percent_at(c, USCS_GRAVEL_COBBLE_MM, &p75, NULL) != SG_OK ||
-        sg_curve_percent_at(c, USCS_FINES_MM, &p0075, NULL) != SG_OK || !(p75 > 0.0))
+    if (sg_curve_percent_at_log10(c, USCS_GRAVEL_COBBLE_MM, LOG10_75, &p75, NULL) != SG_OK ||
+        sg_curve_percent_at_log10(c, USCS_FINES_MM, LOG10_0_075, &p0075, NULL) != SG_OK || !(p75 > 0.0))
         return;
     *fines = 100.0 * p0075 / p75;
-    if (sg_curve_percent_at(c, USCS_SAND_GRAVEL_MM, &p475, NULL) != SG_OK)
+    if (sg_curve_percent_at_log10(c, USCS_SAND_GRAVEL_MM, LOG10_4_75, &p475, NULL) != SG_OK)
         return;
     *gravel = 100.0 * (p75 - p475) / p75;
     *sand = 100.0 * (p475 - p0075) / p75;
@@ -261,7 +268,7 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
     *ll = l;
     if (p >= l) {
         *pi = 0.0;
-        if (!x->quiet)
+        if (!x->no_notes)
             (void)snprintf(note, sizeof note,
                            "non-plastic: the plastic limit %g %% is not below the liquid limit %g %% (ASTM D4318 "
                            "reports NP)",
@@ -271,7 +278,7 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
         return undet(x, "liquidity_index", "", "not determined: non-plastic (PI 0)");
     }
     *pi = l - p;
-    if (!x->quiet)
+    if (!x->no_notes)
         (void)snprintf(note, sizeof note, "PI = LL - PL = %g - %g (limits as given in the record)", l, p);
     if ((st = value(x, "plasticity_index_pct", "%", *pi, note)) != SG_OK)
         return st;
@@ -279,7 +286,7 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
         return undet(x, "liquidity_index", "",
                      "not determined: needs the natural moisture content (test,natural_moisture_pct)");
     const double li = (rec->natural_moisture_pct - p) / *pi;
-    if (!x->quiet)
+    if (!x->no_notes)
         (void)snprintf(note, sizeof note, "LI = (w - PL) / PI with w = %g %%: %s", rec->natural_moisture_pct,
                        li < 0.0   ? "drier than the plastic limit (semi-solid)"
                        : li > 1.0 ? "wetter than the liquid limit (liquid when remoulded; sensitive)"
@@ -298,7 +305,7 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
         return undet(x, "bs5930_plasticity", "", "not determined: needs the liquid and plastic limits");
     }
     const enum sg_chart_zone z = sg_plasticity_chart_zone(ll, pi);
-    if (!x->quiet)
+    if (!x->no_notes)
         (void)snprintf(note, sizeof note,
                        "plasticity chart: LL %g %%, PI %g %%; A-line PI %.1f %% (0.73 (LL - 20)), U-line PI %.1f "
                        "%% (0.9 (LL - 8))%s",
@@ -317,12 +324,19 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
     const char *term = sg_plasticity_bs5930_term(ll, &letter);
     if (term == NULL)
         return undet(x, "bs5930_plasticity", "", "not determined: liquid limit not credible");
-    char t[SG_QTEXT_MAX];
-    if (z == SG_CHART_NON_PLASTIC)
-        (void)snprintf(t, sizeof t, "non-plastic");
-    else
-        (void)snprintf(t, sizeof t, "%c%c: %s of %s plasticity", z == SG_CHART_BELOW_A ? 'M' : 'C', letter,
-                       z == SG_CHART_BELOW_A ? "silt" : "clay", term);
+    /* "<M|C><letter>: <silt|clay> of <term> plasticity" (well within the text's size) */
+    char t[SG_QTEXT_MAX] = "non-plastic";
+    if (z != SG_CHART_NON_PLASTIC) {
+        const char *kind = z == SG_CHART_BELOW_A ? "silt" : "clay";
+        const size_t lt = strlen(term);
+        t[0] = z == SG_CHART_BELOW_A ? 'M' : 'C';
+        t[1] = letter;
+        memcpy(t + 2, ": ", 2);
+        memcpy(t + 4, kind, 4);
+        memcpy(t + 8, " of ", 4);
+        memcpy(t + 12, term, lt);
+        memcpy(t + 12 + lt, " plasticity", sizeof " plasticity");
+    }
     return text(x, "bs5930_plasticity", t,
                 "BS 5930 plasticity by liquid limit (from memory): low < 35, intermediate 35-50, high 50-70, "
                 "very high 70-90, extremely high >= 90 %; C above the A-line, M below");
@@ -357,11 +371,11 @@ static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, doubl
                 return st;
     }
     if (sym == NULL) {
-        if (!x->quiet)
+        if (!x->no_notes)
             (void)snprintf(note, sizeof note, "not determined: %s", why);
         return undet(x, "uscs_symbol", "", note);
     }
-    if (!x->quiet)
+    if (!x->no_notes)
         (void)snprintf(note, sizeof note,
                        "ASTM D2487 group symbol (rules from memory) from fines %.1f %% of the fraction finer than "
                        "75 mm%s; inorganic assumed (OL/OH need the oven-dried liquid limit)",
@@ -409,7 +423,7 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
         return undet(x, "activity_class", "", "not determined: no clay-size material");
     }
     const double a = pi / cf;
-    if (!x->quiet)
+    if (!x->no_notes)
         (void)snprintf(note, sizeof note,
                        "Skempton activity A = PI / clay fraction = %g / %.2f (clay: %% of the whole sample finer than "
                        "0.002 mm)",
@@ -431,7 +445,8 @@ enum sg_status sg_plasticity_summarise(const struct sg_record *rec, const struct
 {
     if (rec == NULL || res == NULL)
         return sg_error_set(err, SG_EINVAL, 0, 0, "no record or no result for the plasticity check");
-    struct ctx x = {res, err, opt != NULL && opt->values_only};
+    struct ctx x = {res, err, opt != NULL && opt->values_only,
+                    opt != NULL && (opt->values_only || opt->skip_notes)};
     double ll, pi;
     enum sg_status st;
     if ((st = add_limits(&x, rec, &ll, &pi)) != SG_OK || (st = add_chart(&x, ll, pi)) != SG_OK ||

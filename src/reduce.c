@@ -355,5 +355,9 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
         if ((st = sg_result_add_flag(res, k->notes[i].name, k->notes[i].severity, 0, "%s",
                                      k->notes[i].message)) != SG_OK)
             return sg_error_set(err, st, 0, 0, "out of memory");
-    return sg_qc_evaluate(rec, k, &opt->qc, res, err);
+    st = sg_qc_evaluate(rec, k, &opt->qc, res, err);
+    if (opt->skip_notes) /* the summary formatted none; the few fixed ones go too */
+        for (size_t i = 0; i < res->n_quantities; i++)
+            res->quantities[i].note[0] = '\0';
+    return st;
 }

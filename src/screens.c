@@ -132,7 +132,7 @@ enum sg_status sg_screens_summarise(const struct sg_record *rec, const struct sg
     (void)rec;
     if (res == NULL)
         return sg_error_set(err, SG_EINVAL, 0, 0, "no result for the screens");
-    const bool quiet = opt != NULL && opt->values_only;
+    const bool quiet = opt != NULL && (opt->values_only || opt->skip_notes); /* notes only */
     enum sg_status st = add_hazen(res, quiet, err);
     if (st == SG_OK)
         st = add_frost(res, quiet, err);

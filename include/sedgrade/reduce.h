@@ -48,6 +48,9 @@ struct sg_reduce_options {
     size_t n_extra_dx;
     bool values_only;            /* Monte Carlo draws (mc.h): values only; QC, register notes and
                                     summary notes may be skipped. Default false. */
+    bool skip_notes;             /* every summary note left empty, nothing else changed (QC, flags and
+                                    their messages kept): for callers that write no per-test summary
+                                    (a batch with --outputs none). Default false. */
 };
 
 /* Defaults: loglinear, default QC limits, no extra D_x. */
