@@ -377,7 +377,9 @@ static void perturb(const struct plan *p, struct sg_record *r, struct sg_constan
 static const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs, size_t i)
 {
     const size_t j = p->draw_index[i];
-    if (j < rs->n_quantities && strcmp(rs->quantities[j].name, p->names[i]) == 0)
+    /* names as whole arrays first (the result zero-pads them, as calloc did
+     * p->names): equal arrays are equal names; else by name */
+    if (j < rs->n_quantities && memcmp(rs->quantities[j].name, p->names[i], sizeof p->names[i]) == 0)
         return &rs->quantities[j];
     return sg_result_quantity(rs, p->names[i]);
 }

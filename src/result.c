@@ -105,7 +105,9 @@ static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, c
         return NULL;
     struct sg_quantity *q = &r->quantities[r->n_quantities++];
     /* every field set, the strings only up to their terminator (a quantity
-     * is written about 70 times per reduction) */
+     * is written about 70 times per reduction); the name zero-padded, so
+     * that equal names are equal arrays (a cheap first test in mc.c) */
+    memset(q->name, 0, sizeof q->name);
     copy_text(q->name, sizeof q->name, name);
     copy_text(q->unit, sizeof q->unit, unit);
     copy_text(q->note, sizeof q->note, note);
