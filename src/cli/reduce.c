@@ -973,6 +973,9 @@ int sg_cli_reduce(int argc, char **argv)
     const int early = parse_options(argc, argv, &cfg);
     if (early >= 0)
         return early;
+    /* Notes are read only from the per-test summary and the report: without
+     * them (e.g. --outputs none for an archive) none is formatted. */
+    cfg.opt.skip_notes = !(cfg.outputs & OUT_SUMMARY) && !cfg.report;
 
     struct path_list files = {0};
     size_t walk_problems = 0;
