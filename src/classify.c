@@ -277,18 +277,30 @@ static enum sg_status nomem(struct ctx *x)
     return sg_error_set(x->err, SG_ENOMEM, 0, 0, "out of memory adding summary quantities");
 }
 
-static enum sg_status add_value(struct ctx *x, const char *name, const char *unit, double v, const char *note)
+/* Names are whole SG_QNAME_MAX-byte arrays, zero after the text (table
+ * entries, or QN("...") for a literal), copied by the result as one block. */
+#define QN(s) ((const char[SG_QNAME_MAX]){s})
+
+static enum sg_status add_value(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, double v,
+                                const char *note)
 {
-    return sg_result_add_value(x->res, name, unit, v, x->quiet ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    struct sg_quantity *q = sg_result_new_quantity(x->res, name, unit, x->quiet ? "" : note);
+    if (q == NULL)
+        return nomem(x);
+    q->determined = isfinite(v);
+    q->value = v;
+    return SG_OK;
 }
 
-static enum sg_status add_undet(struct ctx *x, const char *name, const char *unit, const char *fmt, ...)
+static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, const char *fmt,
+                                ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 4, 5)))
 #endif
     ;
 
-static enum sg_status add_undet(struct ctx *x, const char *name, const char *unit, const char *fmt, ...)
+static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, const char *fmt,
+                                ...)
 {
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
@@ -298,7 +310,7 @@ static enum sg_status add_undet(struct ctx *x, const char *name, const char *uni
         (void)vsnprintf(note, sizeof note, fmt, ap);
         va_end(ap);
     }
-    return sg_result_add_undetermined(x->res, name, unit, note) == SG_OK ? SG_OK : nomem(x);
+    return sg_result_new_quantity(x->res, name, unit, note) != NULL ? SG_OK : nomem(x);
 }
 
 static enum sg_status add_text(struct ctx *x, const char *name, const char *text, const char *note)
@@ -411,12 +423,13 @@ static void join(char *buf, size_t n, const char *first, ...)
 /* Adds d<x>_mm, named name (NULL: from p) with p written as shown (p as
  * "%g" would write it; NULL: formatted); stores the reading in *out when
  * out is not NULL. */
-static enum sg_status add_dx(struct ctx *x, double p, const char *name, const char *shown, struct reading *out,
-                             char *why_buf)
+static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_MAX], const char *shown,
+                             struct reading *out, char *why_buf)
 {
     char label[24], name_buf[SG_QNAME_MAX];
     if (name == NULL) {
         dx_label(p, label, sizeof label);
+        memset(name_buf, 0, sizeof name_buf);
         join(name_buf, sizeof name_buf, "d", label, "_mm", (const char *)NULL);
         name = name_buf;
     }
@@ -455,7 +468,7 @@ static struct reading fraction(const struct ctx *x, enum bound lower, enum bound
 
 /* Adds a fraction of the whole sample (or, with basis > 0, of the part
  * whose percent of the sample is basis). what describes it for the note. */
-static enum sg_status add_fraction_on(struct ctx *x, const char *name, enum bound lower, enum bound upper,
+static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
                                       const struct reading *basis, const char *what)
 {
     const struct reading r = fraction(x, lower, upper);
@@ -480,7 +493,7 @@ static enum sg_status add_fraction_on(struct ctx *x, const char *name, enum boun
     return add_value(x, name, "%", v, what);
 }
 
-static enum sg_status add_fraction(struct ctx *x, const char *name, enum bound lower, enum bound upper,
+static enum sg_status add_fraction(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
                                    const char *what)
 {
     return add_fraction_on(x, name, lower, upper, NULL, what);
@@ -503,17 +516,17 @@ static enum sg_status add_cu_cc(struct ctx *x, const struct reading *d10, const 
     }
     enum sg_status st;
     if (!d10->ok || !d60->ok)
-        st = add_undet(x, "cu", "", "not determined: %s not determined (Cu = D60 / D10)", missing);
+        st = add_undet(x, QN("cu"), "", "not determined: %s not determined (Cu = D60 / D10)", missing);
     else {
         *cu = d60->value / d10->value;
-        st = add_value(x, "cu", "", *cu, "coefficient of uniformity D60 / D10");
+        st = add_value(x, QN("cu"), "", *cu, "coefficient of uniformity D60 / D10");
     }
     if (st != SG_OK)
         return st;
     if (!d10->ok || !d30->ok || !d60->ok)
-        return add_undet(x, "cc", "", "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
+        return add_undet(x, QN("cc"), "", "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
     *cc = d30->value * d30->value / (d10->value * d60->value);
-    return add_value(x, "cc", "", *cc, "coefficient of curvature D30^2 / (D10 D60)");
+    return add_value(x, QN("cc"), "", *cc, "coefficient of curvature D30^2 / (D10 D60)");
 }
 
 static enum sg_status add_usda(struct ctx *x, struct reading *p2)
@@ -521,7 +534,7 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
     *p2 = at(x, B_2);
     const struct reading p005 = at(x, B_0_05), p0002 = at(x, B_0_002);
     enum sg_status st;
-    const char *names[3] = {"usda_sand_pct", "usda_silt_pct", "usda_clay_pct"};
+    static const char names[3][SG_QNAME_MAX] = {"usda_sand_pct", "usda_silt_pct", "usda_clay_pct"};
     const char *what[3] = {"USDA sand 0.05-2 mm, % of the fraction finer than 2 mm",
                            "USDA silt 0.002-0.05 mm, % of the fraction finer than 2 mm",
                            "USDA clay < 0.002 mm, % of the fraction finer than 2 mm"};
@@ -553,10 +566,10 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
             return st;
     }
     if (!all)
-        return add_undet(x, "usda_texture", "", "not determined: %s", why);
+        return add_undet(x, QN("usda_texture"), "", "not determined: %s", why);
     const char *cls = sg_classify_usda_texture(v[0], v[1], v[2]);
     if (cls == NULL)
-        return add_undet(x, "usda_texture", "",
+        return add_undet(x, QN("usda_texture"), "",
                          "not determined: a separate is negative (sand %.1f, silt %.1f, clay %.1f %%; the curve "
                          "rises with falling size, see the QC flags)",
                          v[0], v[1], v[2]);
@@ -583,6 +596,7 @@ static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options
             continue;
         char label[24], name[SG_QNAME_MAX];
         dx_label(p, label, sizeof label);
+        memset(name, 0, sizeof name); /* zero after the text (add_value, add_undet) */
         join(name, sizeof name, "d", label, "_mm", (const char *)NULL);
         if (sg_result_quantity(x->res, name) != NULL)
             continue;
@@ -604,15 +618,15 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     enum sg_status st;
     const struct reading *bad = !p75.ok ? &p75 : !p475.ok ? &p475 : !p0075.ok ? &p0075 : NULL;
     if (bad != NULL) {
-        if ((st = add_undet(x, "uscs_grading", "", "not determined (needs P at 75, 4.75, 0.075 mm): %s",
+        if ((st = add_undet(x, QN("uscs_grading"), "", "not determined (needs P at 75, 4.75, 0.075 mm): %s",
                             bad->why)) != SG_OK)
             return st;
-        return add_undet(x, "uscs_group", "", "not determined (needs P at 75, 4.75, 0.075 mm): %s", bad->why);
+        return add_undet(x, QN("uscs_group"), "", "not determined (needs P at 75, 4.75, 0.075 mm): %s", bad->why);
     }
     if (!(p75.value > 0.0)) {
-        if ((st = add_undet(x, "uscs_grading", "", "not determined: no material finer than 75 mm")) != SG_OK)
+        if ((st = add_undet(x, QN("uscs_grading"), "", "not determined: no material finer than 75 mm")) != SG_OK)
             return st;
-        return add_undet(x, "uscs_group", "", "not determined: no material finer than 75 mm");
+        return add_undet(x, QN("uscs_group"), "", "not determined: no material finer than 75 mm");
     }
     const double fines = 100.0 * p0075.value / p75.value;
     const double gravel = 100.0 * (p75.value - p475.value) / p75.value;
@@ -635,7 +649,7 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      fines);
         if ((st = add_text(x, "uscs_grading", "not applicable, fine-grained", note)) != SG_OK)
             return st;
-        return add_undet(x, "uscs_group", "",
+        return add_undet(x, QN("uscs_group"), "",
                          "fine-grained soil (fines %.1f %% >= 50 %%): ML, CL, MH, CH, OL or OH needs the "
                          "Atterberg limits (and organic content)",
                          fines);
@@ -648,14 +662,14 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      basis);
         if ((st = add_text(x, "uscs_grading", "not applicable, fines over 12 %", note)) != SG_OK)
             return st;
-        return add_undet(x, "uscs_group", "", "%s with fines over 12 %% (%s): %s needs the Atterberg limits",
+        return add_undet(x, QN("uscs_group"), "", "%s with fines over 12 %% (%s): %s needs the Atterberg limits",
                          kind, basis, is_gravel ? "GM, GC or GC-GM" : "SM, SC or SC-SM");
     }
     if (!isfinite(cu) || !isfinite(cc)) {
-        if ((st = add_undet(x, "uscs_grading", "",
+        if ((st = add_undet(x, QN("uscs_grading"), "",
                             "not determined: Cu and Cc are needed (D10, D30 and D60; %s)", basis)) != SG_OK)
             return st;
-        return add_undet(x, "uscs_group", "", "not determined: Cu and Cc are needed (%s)", basis);
+        return add_undet(x, QN("uscs_group"), "", "not determined: Cu and Cc are needed (%s)", basis);
     }
     const bool well = sg_classify_uscs_well_graded(is_gravel, cu, cc);
     if (!x->quiet)
@@ -669,7 +683,7 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
             fmt_into(note, sizeof note, "ASTM D2487 coarse-grained, fines %.1f %% < 5 %% (%s)", fines, basis);
         return add_text(x, "uscs_group", sym, note);
     }
-    return add_undet(x, "uscs_group", "",
+    return add_undet(x, QN("uscs_group"), "",
                      "dual symbol %s-%cM or %s-%cC (fines %.1f %%, 5-12 %%): the second part needs the "
                      "Atterberg limits of the fines",
                      sym, is_gravel ? 'G' : 'S', sym, is_gravel ? 'G' : 'S', fines);
@@ -678,10 +692,10 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
 static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
 {
     if (!isfinite(cu) || !isfinite(cc))
-        return add_undet(x, "iso_grading", "", "not determined: Cu and Cc are needed (D10, D30 and D60)");
+        return add_undet(x, QN("iso_grading"), "", "not determined: Cu and Cc are needed (D10, D30 and D60)");
     const char *term = sg_classify_iso_grading(cu, cc);
     if (term == NULL)
-        return add_undet(x, "iso_grading", "",
+        return add_undet(x, QN("iso_grading"), "",
                          "no ISO 14688-2 term fits Cu %.2f, Cc %.2f (multi-graded needs Cu > 15 and 1 < Cc < 3; "
                          "gap-graded Cc < 0.5)",
                          cu, cc);
@@ -769,7 +783,7 @@ static void around_add(struct around *a, double a_mm, const struct sed_point *s)
 static enum sg_status add_junction_gap(struct ctx *x)
 {
     const struct sg_result *res = x->res;
-    const char *name = "junction_gap_pct";
+    static const char name[SG_QNAME_MAX] = "junction_gap_pct";
     double a_mm = INFINITY, p_sieve = NAN;
     bool a_from_sieve = false;
     size_t n_sed = 0;
@@ -859,7 +873,8 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
 
     static const struct {
         double p;
-        const char *name, *shown;
+        char name[SG_QNAME_MAX];
+        const char *shown;
     } dp[] = {{10.0, "d10_mm", "10"}, {15.0, "d15_mm", "15"}, {30.0, "d30_mm", "30"},
               {50.0, "d50_mm", "50"}, {60.0, "d60_mm", "60"}, {85.0, "d85_mm", "85"}};
     struct reading d[6];
@@ -874,11 +889,11 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     if ((st = read_bounds(&x)) != SG_OK)
         return st;
     struct reading p2;
-    if ((st = add_fraction(&x, "clay_pct", B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
-        (st = add_fraction(&x, "silt_pct", B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
-        (st = add_fraction(&x, "sand_pct", B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
-        (st = add_fraction(&x, "gravel_pct", B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
-        (st = add_fraction(&x, "fines_pct", B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
+    if ((st = add_fraction(&x, QN("clay_pct"), B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
+        (st = add_fraction(&x, QN("silt_pct"), B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
+        (st = add_fraction(&x, QN("sand_pct"), B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
+        (st = add_fraction(&x, QN("gravel_pct"), B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
+        (st = add_fraction(&x, QN("fines_pct"), B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
         (st = add_usda(&x, &p2)))
         return st;
 
@@ -886,7 +901,7 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
         return st;
 
     static const struct {
-        const char *name;
+        char name[SG_QNAME_MAX];
         enum bound lower, upper;
         bool of_fine_earth; /* USDA separates: % of the fraction finer than 2 mm */
         const char *what;

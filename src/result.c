@@ -95,20 +95,21 @@ enum sg_status sg_result_add_flag(struct sg_result *r, const char *name, enum sg
     return SG_OK;
 }
 
-static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, const char *unit,
-                                        const char *note)
+/* The next row, grown as needed; NULL when out of memory. */
+static struct sg_quantity *next_row(struct sg_result *r)
 {
     void *items = r->quantities;
     enum sg_status st = grow(&items, r->n_quantities, &r->cap_quantities, sizeof *r->quantities);
     r->quantities = items;
     if (st != SG_OK)
         return NULL;
-    struct sg_quantity *q = &r->quantities[r->n_quantities++];
-    /* every field set, the strings only up to their terminator (a quantity
-     * is written about 70 times per reduction); the name zero-padded, so
-     * that equal names are equal arrays (a cheap first test in mc.c) */
-    memset(q->name, 0, sizeof q->name);
-    copy_text(q->name, sizeof q->name, name);
+    return &r->quantities[r->n_quantities++];
+}
+
+/* Every field but the name, the strings only up to their terminator (a
+ * row is written about 70 times per reduction). */
+static void fill_row(struct sg_quantity *q, const char *unit, const char *note)
+{
     copy_text(q->unit, sizeof q->unit, unit);
     copy_text(q->note, sizeof q->note, note);
     q->text[0] = '\0';
@@ -117,6 +118,31 @@ static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, c
     q->has_u = false;
     q->value = NAN;
     q->u = q->low95 = q->high95 = NAN;
+}
+
+static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, const char *unit,
+                                        const char *note)
+{
+    struct sg_quantity *q = next_row(r);
+    if (q == NULL)
+        return NULL;
+    /* the name zero-padded, so that equal names are equal arrays (a cheap
+     * first test in mc.c) */
+    memset(q->name, 0, sizeof q->name);
+    copy_text(q->name, sizeof q->name, name);
+    fill_row(q, unit, note);
+    return q;
+}
+
+struct sg_quantity *sg_result_new_quantity(struct sg_result *r, const char name[SG_QNAME_MAX], const char *unit,
+                                           const char *note)
+{
+    struct sg_quantity *q = next_row(r);
+    if (q == NULL)
+        return NULL;
+    memcpy(q->name, name, SG_QNAME_MAX); /* one block: no strlen */
+    q->name[SG_QNAME_MAX - 1] = '\0';
+    fill_row(q, unit, note);
     return q;
 }
 

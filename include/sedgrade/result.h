@@ -108,6 +108,14 @@ enum sg_status sg_result_add_undetermined(struct sg_result *r, const char *name,
 /* Adds a categorical quantity (text value). */
 enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const char *text, const char *note);
 
+/* Appends a row that is not determined (value NaN, empty text, no u), to be
+ * filled in place, for callers that add many rows from tables of names:
+ * name is a whole SG_QNAME_MAX-byte array, zero after its text (e.g. an
+ * entry of a static table), copied as one block without measuring it;
+ * unit and note as for sg_result_add_value. NULL when out of memory. */
+struct sg_quantity *sg_result_new_quantity(struct sg_result *r, const char name[SG_QNAME_MAX], const char *unit,
+                                           const char *note);
+
 /* The quantity called name, or NULL. */
 struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *name);
 
