@@ -9,6 +9,7 @@
 #include <math.h>
 #include <stdarg.h>
 #include <stdbool.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -369,13 +370,16 @@ static size_t group_mark_len(const char *s)
     return 0;
 }
 
-/* Clinger's fast path (W. D. Clinger, "How to read floating point numbers
- * accurately", PLDI 1990): a decimal of at most 15 significant digits is an
+/* A plain decimal [+-]?(d+(.d*)?|.d+)([eE][+-]?d+)?, the whole of s, read
+ * by Clinger's fast path (W. D. Clinger, "How to read floating point
+ * numbers accurately", PLDI 1990): at most 15 significant digits make an
  * exact double, as is every power of ten up to 1e22, so one multiplication
  * or division gives the correctly rounded value, which is what strtod()
- * returns. s matches number_prefix() in full. false: use strtod(). */
+ * returns. false for anything else (other text, more digits, a larger
+ * exponent): the full checks and strtod() then decide. */
 #define FAST_DIGITS_MAX 15
 #define FAST_POW10_MAX 22
+#define FAST_EXP_DIGITS_MAX 4
 static bool fast_decimal(const char *s, double *out)
 {
     static const double pow10[FAST_POW10_MAX + 1] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
@@ -385,7 +389,7 @@ static bool fast_decimal(const char *s, double *out)
     if (*s == '+' || *s == '-')
         s++;
     unsigned long long m = 0;
-    int sig = 0, e10 = 0;
+    int sig = 0, e10 = 0, nd = 0;
     bool point = false;
     for (;; s++) {
         if (*s == '.' && !point) {
@@ -394,6 +398,7 @@ static bool fast_decimal(const char *s, double *out)
         }
         if (!is_digit((unsigned char)*s))
             break;
+        nd++;
         if (m != 0 || *s != '0') {
             if (++sig > FAST_DIGITS_MAX)
                 return false;
@@ -401,17 +406,21 @@ static bool fast_decimal(const char *s, double *out)
         }
         e10 -= point;
     }
+    if (nd == 0)
+        return false;
     if (*s == 'e' || *s == 'E') {
         s++;
         const bool eneg = *s == '-';
         if (*s == '+' || *s == '-')
             s++;
-        int x = 0;
-        for (int nd = 0; is_digit((unsigned char)*s); s++, nd++) {
-            if (nd >= 4)
+        int x = 0, xd = 0;
+        for (; is_digit((unsigned char)*s); s++, xd++) {
+            if (xd >= FAST_EXP_DIGITS_MAX)
                 return false;
             x = 10 * x + (*s - '0');
         }
+        if (xd == 0)
+            return false;
         e10 += eneg ? -x : x;
     }
     if (*s != '\0')
@@ -434,6 +443,9 @@ static enum numerr parse_number(const struct field *f, bool decimal_comma, doubl
         return NUM_EMPTY;
     if (f->len >= NUMBER_TEXT_MAX)
         return NUM_BAD;
+    /* a plain decimal passes every check below: read it at once */
+    if (fast_decimal(f->text, out))
+        return NUM_OK;
     char buf[NUMBER_TEXT_MAX];
     memcpy(buf, f->text, f->len + 1);
 
@@ -474,8 +486,6 @@ static enum numerr parse_number(const struct field *f, bool decimal_comma, doubl
         return NUM_BAD;
     }
 
-    if (fast_decimal(buf, out))
-        return NUM_OK;
     errno = 0;
     char *end = NULL;
     const double v = strtod(buf, &end);
@@ -988,8 +998,22 @@ static bool check_text(struct rp *p)
     /* One pass over the bytes without line and column tracking; the
      * position is worked out only for a byte that is refused. */
     const unsigned char *s = p->s;
-    size_t i = p->cur.i;
+    size_t i = p->cur.i, chunk_end = i;
     while (i < p->n) {
+        if (i >= chunk_end && i + sizeof(uint64_t) <= p->n) {
+            /* eight bytes at a time while all are printable ASCII (0x20-0x7E):
+             * no high bit, none below 0x20, none equal to 0x7F (the usual
+             * "has a byte less than n" word tests, no false negatives) */
+            uint64_t w;
+            memcpy(&w, s + i, sizeof w);
+            const uint64_t ones = 0x0101010101010101ull, high = 0x8080808080808080ull;
+            const uint64_t del = w ^ (0x7F * ones);
+            if (((w | ((w - 0x20 * ones) & ~w) | ((del - ones) & ~del)) & high) == 0) {
+                i += sizeof w;
+                continue;
+            }
+            chunk_end = i + sizeof w; /* byte by byte up to there */
+        }
         const unsigned char b = s[i];
         if (b >= 0x20 && b < 0x7F) { /* printable ASCII, nearly every byte */
             i++;
