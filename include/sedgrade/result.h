@@ -54,11 +54,13 @@ struct sg_quantity {
     bool determined;          /* false: value empty, note says why */
     bool is_text;             /* categorical value in text (e.g. usda_texture) */
     double value;
-    char text[SG_QTEXT_MAX];
-    char note[SG_QNOTE_MAX];
-    /* Monte Carlo (has_u): standard uncertainty and 95 % coverage interval */
+    /* Monte Carlo (has_u): standard uncertainty and 95 % coverage interval
+     * (kept before the long strings: a row's fields that every reduction
+     * writes then share three cache lines instead of five) */
     bool has_u;
     double u, low95, high95;
+    char text[SG_QTEXT_MAX];
+    char note[SG_QNOTE_MAX];
 };
 
 #define SG_FLAG_NAME_MAX 40
