@@ -565,6 +565,32 @@ Test(qc, non_monotone_ignores_order_ties_and_points_off_the_curve)
     sg_result_release(&r);
 }
 
+/* A long run (more curve points than fit the rule's stack buffer), added
+ * coarse to fine as readings come: one point rises 1.5 points above its
+ * coarser neighbour. */
+Test(qc, non_monotone_on_a_long_run)
+{
+    struct sg_result r;
+    sg_result_init(&r);
+    const size_t n = 150;
+    for (size_t k = 0; k < n; k++) {
+        const size_t i = n - 1 - k; /* size rank, 0 = finest */
+        const double d_mm = 0.001 * pow(10.0, 1.5 * (double)i / (double)(n - 1)); /* 0.001-0.0316 mm */
+        const double pct = 20.0 + 0.4 * (double)i + (i == 70 ? 1.9 : 0.0);
+        add(&r, hyd((unsigned)(100 + k), 0.5 * (double)(k + 1), d_mm, pct, 20.0));
+    }
+    evaluate(&r);
+    const struct sg_flag *f = find_flag(&r, "non_monotone");
+    cr_assert_not_null(f);
+    cr_assert_eq(f->line, 179u); /* rank 70 (k 79): 49.9 % against 48.4 % at the coarser rank 71 */
+    cr_assert_eq(find_flag(&r, "not_falling")->line, 179u);
+    size_t flagged = 0;
+    for (size_t i = 0; i < n; i++)
+        flagged += (r.points[i].flags & SG_PF_NON_MONOTONE) != 0;
+    cr_assert_eq(flagged, 1u);
+    sg_result_release(&r);
+}
+
 Test(qc, junction_gap_at_and_past_the_limit)
 {
     struct sg_result r;
