@@ -700,6 +700,7 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
     size_t n_cols = 0;
     const size_t n_schemas = b->schemas.n;
     size_t *col_of = calloc((n_schemas ? n_schemas : 1) * MAX_COLUMNS, sizeof *col_of);
+    size_t *order = NULL;
     char *vals[MAX_COLUMNS];
     char *buf = NULL;
     size_t cap = 0;
@@ -708,7 +709,30 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
         st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
         goto cleanup;
     }
-    for (size_t s = 0; s < n_schemas; s++) {
+    /* Schemas are taken in the order the (id-sorted) tests first use them, not
+     * in the order the worker threads happened to record them, so the columns
+     * are the same from run to run. */
+    order = calloc(n_schemas ? n_schemas : 1, sizeof *order);
+    bool *seen = calloc(n_schemas ? n_schemas : 1, sizeof *seen);
+    size_t n_order = 0;
+    if (order == NULL || seen == NULL) {
+        free(seen);
+        st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
+        goto cleanup;
+    }
+    for (size_t i = 0; i < b->n_jobs; i++) {
+        const struct job *job = &b->jobs[i];
+        if (job->has_values && job->schema < n_schemas && !seen[job->schema]) {
+            seen[job->schema] = true;
+            order[n_order++] = job->schema;
+        }
+    }
+    for (size_t s = 0; s < n_schemas; s++)
+        if (!seen[s])
+            order[n_order++] = s;
+    free(seen);
+    for (size_t k = 0; k < n_order; k++) {
+        const size_t s = order[k];
         char *fields[MAX_COLUMNS];
         char *copy = strdup(b->schemas.names[s]);
         if (copy == NULL) {
@@ -791,6 +815,7 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
 cleanup:
     for (size_t j = 0; j < n_cols; j++)
         free(cols[j]);
+    free(order);
     free(col_of);
     free(buf);
     return st;
