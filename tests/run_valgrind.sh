@@ -28,7 +28,7 @@ vg_exit=97 # valgrind's exit status for a process with errors (distinct from tes
 jobs=()
 [ -n "${VALGRIND_JOBS:-}" ] && jobs=(--jobs="$VALGRIND_JOBS")
 limit=${VALGRIND_TIMEOUT:-3600}
-logs=$(mktemp -d "${TMPDIR:-/tmp}/sedgrade-valgrind.XXXXXX")
+logs=$(mktemp -d "$build/valgrind-logs.XXXXXX") # under the build folder, not a shared /tmp
 cleanup() { [ "${VALGRIND_KEEP_LOGS:-0}" = 1 ] && echo "valgrind: logs kept in $logs" || rm -rf "$logs"; }
 trap cleanup EXIT
 
@@ -80,7 +80,17 @@ for t in "$build"/tests/test_*; do
   dir="$logs/$name"; mkdir -p "$dir"
   (cd "$here" && timeout "$limit" valgrind "${opts[@]}" --log-file="$dir/%p.log" "$t" "${jobs[@]}") \
     >"$dir/out" 2>&1
-  record "$name" "$dir" $?
+  rc=$?
+  # A run that died without any memory report (the test runner itself aborted,
+  # e.g. its socket lost under heavy load) is tried once more before it counts.
+  if [ "$rc" -ne 0 ] && [ "$rc" -ne $vg_exit ] && [ "$rc" -ne 124 ] && [ -z "$(faulty_logs "$dir")" ]; then
+    echo "valgrind: $name: exit status $rc without a memory report; running it once more"
+    rm -rf "$dir"; mkdir -p "$dir"
+    (cd "$here" && timeout "$limit" valgrind "${opts[@]}" --log-file="$dir/%p.log" "$t" "${jobs[@]}") \
+      >"$dir/out" 2>&1
+    rc=$?
+  fi
+  record "$name" "$dir" $rc
 done
 
 # The golden CLI cases, each run of the program under valgrind through the
