@@ -251,7 +251,7 @@ static int write_record(const char *dir, size_t index, gsl_rng *r, const char *r
             (void)sg_stokes_time_s(eta, PIPETTE_DEPTH_MM / 1000.0, drho, pip_sizes_mm[k] / 1000.0, &t_s, NULL);
             double t_min = round(t_s / 6.0) / 10.0; /* the sampling clock is read to 0.1 min */
             if (fault && k == 6)
-                t_min = 1.0; /* a transcription slip: times no longer increase */
+                t_min = 1.0; /* a typing slip: times no longer increase */
             (void)sg_stokes_diameter_m(eta, PIPETTE_DEPTH_MM / 1000.0, drho, fmax(t_min, 0.1) * 60.0, &d_m, NULL);
             const double p_spec = fmin(100.0, 100.0 * grading_pct(&g, d_m * 1000.0) / p_split);
             const double solids = (p_spec / 100.0 * spec_g + disp_g) * PIPETTE_VOLUME_ML / PIPETTE_SUSPENSION_ML;
