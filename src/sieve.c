@@ -29,7 +29,12 @@ enum sg_status sg_sieve_reduce(const struct sg_sieve_row *rows, size_t n, double
                                         .retained_g = r->retained_g,
                                         .line = r->pos.line};
     }
-    qsort(out, n, sizeof *out, by_aperture_desc);
+    /* records list the stack from the top; sort only when they do not */
+    bool sorted = true;
+    for (size_t i = 1; i < n && sorted; i++)
+        sorted = by_aperture_desc(&out[i - 1], &out[i]) <= 0;
+    if (!sorted)
+        qsort(out, n, sizeof *out, by_aperture_desc);
     double cmr = 0.0;
     for (size_t i = 0; i < n; i++) {
         if (i > 0 && out[i].aperture_mm == out[i - 1].aperture_mm)
