@@ -27,6 +27,23 @@ enum sg_status sg_csvout_curve(FILE *fp, const struct sg_result *res, unsigned p
 enum sg_status sg_csvout_batch(FILE *fp, const struct sg_result *const *results, const char *const *status,
                                size_t n, struct sg_error *err);
 
+/* A row assembled in memory and handed to stdio in one fwrite when it ends
+ * (a per-test file has hundreds of fields: a stdio call per character, as
+ * csv_fwrite makes, or per field costs more than the numbers). Quoting by
+ * libcsv's csv_write. Initialise with {.fp = fp}. */
+struct sg_csvout_row {
+    FILE *fp;
+    size_t n;
+    char buf[4096];
+};
+
+/* Appends one field, quoted when it holds a comma, quote or line break,
+ * with a separator before it unless first. */
+void sg_csvout_field(struct sg_csvout_row *r, const char *s, bool first);
+
+/* Ends the row with '\n' and writes it out (errors show on ferror(fp)). */
+void sg_csvout_end_row(struct sg_csvout_row *r);
+
 /* Formats a number as the CSV files do (%.6g; "" for NaN). buf >= 32 bytes. */
 void sg_csvout_number(double x, char *buf, size_t size);
 

@@ -672,23 +672,6 @@ static size_t split_fields(char *s, char **fields, size_t max)
     return n;
 }
 
-static void csv_field(FILE *fp, const char *s, bool first)
-{
-    if (!first)
-        fputc(',', fp);
-    if (strpbrk(s, ",\"\r\n") == NULL) {
-        fputs(s, fp);
-        return;
-    }
-    fputc('"', fp);
-    for (; *s; s++) {
-        if (*s == '"')
-            fputc('"', fp);
-        fputc(*s, fp);
-    }
-    fputc('"', fp);
-}
-
 #define MAX_COLUMNS 512
 
 static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
@@ -771,23 +754,31 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
     struct sg_atomic_file f;
     if ((st = sg_atomic_open(&f, path, err)) != SG_OK)
         goto cleanup;
-    csv_field(f.fp, "id", true);
-    csv_field(f.fp, "status", false);
-    csv_field(f.fp, "file", false);
+    struct sg_csvout_row *row = malloc(sizeof *row);
+    if (row == NULL) {
+        sg_atomic_abort(&f);
+        st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
+        goto cleanup;
+    }
+    *row = (struct sg_csvout_row){.fp = f.fp, .n = 0};
+    sg_csvout_field(row, "id", true);
+    sg_csvout_field(row, "status", false);
+    sg_csvout_field(row, "file", false);
     for (size_t j = 0; j < n_cols; j++)
-        csv_field(f.fp, cols[j], false);
-    fputc('\n', f.fp);
+        sg_csvout_field(row, cols[j], false);
+    sg_csvout_end_row(row);
     for (size_t i = 0; i < b->n_jobs; i++) {
         const struct job *job = &b->jobs[i];
-        csv_field(f.fp, job->id, true);
-        csv_field(f.fp, job_status_name(job->status), false);
-        csv_field(f.fp, job->path, false);
+        sg_csvout_field(row, job->id, true);
+        sg_csvout_field(row, job_status_name(job->status), false);
+        sg_csvout_field(row, job->path, false);
         size_t nv = 0;
         if (job->has_values) {
             if (job->spill_len + 1 > cap) {
                 char *p = realloc(buf, job->spill_len + 1);
                 if (p == NULL) {
                     sg_atomic_abort(&f);
+                    free(row);
                     st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
                     goto cleanup;
                 }
@@ -797,6 +788,7 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
             if (pread(fileno(b->spill[job->spill]), buf, job->spill_len, job->spill_off) !=
                 (ssize_t)job->spill_len) {
                 sg_atomic_abort(&f);
+                free(row);
                 st = sg_error_set(err, SG_EIO, 0, 0, "cannot read back the batch summary values: %s",
                                   strerror(errno ? errno : EIO));
                 goto cleanup;
@@ -807,10 +799,11 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
         const size_t *map = &col_of[job->schema * MAX_COLUMNS];
         for (size_t j = 0; j < n_cols; j++) {
             const size_t q = nv > 0 ? map[j] : 0;
-            csv_field(f.fp, q > 0 && q <= nv ? vals[q - 1] : "", false);
+            sg_csvout_field(row, q > 0 && q <= nv ? vals[q - 1] : "", false);
         }
-        fputc('\n', f.fp);
+        sg_csvout_end_row(row);
     }
+    free(row);
     st = sg_atomic_commit(&f, err);
 cleanup:
     for (size_t j = 0; j < n_cols; j++)

@@ -114,22 +114,49 @@ void sg_csvout_number(double x, char *buf, size_t size)
     format_g6(x, buf, size);
 }
 
-/* Writes one field, quoted when needed, with a separator before it unless first. */
-static void field(FILE *fp, const char *s, bool first)
+static void row_flush(struct sg_csvout_row *r)
 {
-    if (!first)
-        (void)fputc(',', fp);
-    if (strpbrk(s, ",\"\r\n") != NULL)
-        (void)csv_fwrite(fp, s, strlen(s));
-    else
-        (void)fputs(s, fp);
+    if (r->n > 0)
+        (void)fwrite(r->buf, 1, r->n, r->fp);
+    r->n = 0;
 }
 
-static void num(FILE *fp, double x, bool first)
+void sg_csvout_field(struct sg_csvout_row *r, const char *s, bool first)
+{
+    const size_t len = strlen(s);
+    /* worst case: a separator, two quotes and every character doubled */
+    if (r->n + 2 * len + 3 > sizeof r->buf) {
+        row_flush(r);
+        if (2 * len + 3 > sizeof r->buf) { /* longer than any field sedgrade makes */
+            if (!first)
+                (void)fputc(',', r->fp);
+            (void)csv_fwrite(r->fp, s, len);
+            return;
+        }
+    }
+    if (!first)
+        r->buf[r->n++] = ',';
+    if (strpbrk(s, ",\"\r\n") != NULL) {
+        r->n += csv_write(r->buf + r->n, sizeof r->buf - r->n, s, len);
+    } else {
+        memcpy(r->buf + r->n, s, len);
+        r->n += len;
+    }
+}
+
+void sg_csvout_end_row(struct sg_csvout_row *r)
+{
+    if (r->n + 1 > sizeof r->buf)
+        row_flush(r);
+    r->buf[r->n++] = '\n';
+    row_flush(r);
+}
+
+static void num(struct sg_csvout_row *r, double x, bool first)
 {
     char buf[32];
     sg_csvout_number(x, buf, sizeof buf);
-    field(fp, buf, first);
+    sg_csvout_field(r, buf, first);
 }
 
 static enum sg_status finish(FILE *fp, struct sg_error *err)
@@ -146,30 +173,31 @@ enum sg_status sg_csvout_points(FILE *fp, const struct sg_result *res, bool with
         "reading", "blank_reading", "corrected_reading", "depth_reading", "effective_depth_mm",
         "concentration_g_l", "solids_g", "net_solids_g", "water_density_kg_m3", "viscosity_mpa_s",
         "reynolds", "retained_g", "cumulative_retained_g", "on_curve", "flags"};
+    struct sg_csvout_row r = {.fp = fp, .n = 0};
     for (size_t i = 0; i < sizeof head / sizeof head[0]; i++)
-        field(fp, head[i], i == 0);
+        sg_csvout_field(&r, head[i], i == 0);
     if (with_u)
-        field(fp, "percent_finer_u", false);
-    (void)fputc('\n', fp);
+        sg_csvout_field(&r, "percent_finer_u", false);
+    sg_csvout_end_row(&r);
     for (size_t i = 0; i < res->n_points; i++) {
         const struct sg_point *p = &res->points[i];
         char line[16], flags[256];
         (void)snprintf(line, sizeof line, "%u", p->line);
         sg_qc_point_flags_format(p->flags, flags, sizeof flags);
-        field(fp, sg_source_name(p->source), true);
-        field(fp, line, false);
+        sg_csvout_field(&r, sg_source_name(p->source), true);
+        sg_csvout_field(&r, line, false);
         const double v[] = {p->diameter_mm, p->percent_finer, p->percent_specimen, p->elapsed_min, p->temp_c,
                             p->reading, p->blank_reading, p->corrected_reading, p->depth_reading,
                             p->effective_depth_mm, p->concentration_g_l, p->solids_g, p->net_solids_g,
                             p->water_density_kg_m3, p->viscosity_mpa_s, p->reynolds, p->retained_g,
                             p->cumulative_retained_g};
         for (size_t j = 0; j < sizeof v / sizeof v[0]; j++)
-            num(fp, v[j], false);
-        field(fp, p->on_curve ? "yes" : "no", false);
-        field(fp, flags, false);
+            num(&r, v[j], false);
+        sg_csvout_field(&r, p->on_curve ? "yes" : "no", false);
+        sg_csvout_field(&r, flags, false);
         if (with_u)
-            num(fp, p->percent_finer_u, false);
-        (void)fputc('\n', fp);
+            num(&r, p->percent_finer_u, false);
+        sg_csvout_end_row(&r);
     }
     return finish(fp, err);
 }
@@ -187,20 +215,21 @@ static void quantity_value(const struct sg_quantity *q, char *buf, size_t size)
 enum sg_status sg_csvout_summary(FILE *fp, const struct sg_result *res, bool with_u, struct sg_error *err)
 {
     (void)fputs(with_u ? "quantity,value,unit,note,u,low95,high95\n" : "quantity,value,unit,note\n", fp);
+    struct sg_csvout_row r = {.fp = fp, .n = 0};
     for (size_t i = 0; i < res->n_quantities; i++) {
         const struct sg_quantity *q = &res->quantities[i];
         char value[SG_QTEXT_MAX];
         quantity_value(q, value, sizeof value);
-        field(fp, q->name, true);
-        field(fp, value, false);
-        field(fp, q->unit, false);
-        field(fp, q->note, false);
+        sg_csvout_field(&r, q->name, true);
+        sg_csvout_field(&r, value, false);
+        sg_csvout_field(&r, q->unit, false);
+        sg_csvout_field(&r, q->note, false);
         if (with_u) {
-            num(fp, q->has_u ? q->u : (double)NAN, false);
-            num(fp, q->has_u ? q->low95 : (double)NAN, false);
-            num(fp, q->has_u ? q->high95 : (double)NAN, false);
+            num(&r, q->has_u ? q->u : (double)NAN, false);
+            num(&r, q->has_u ? q->low95 : (double)NAN, false);
+            num(&r, q->has_u ? q->high95 : (double)NAN, false);
         }
-        (void)fputc('\n', fp);
+        sg_csvout_end_row(&r);
     }
     return finish(fp, err);
 }
@@ -209,6 +238,7 @@ enum sg_status sg_csvout_curve(FILE *fp, const struct sg_result *res, unsigned p
                                struct sg_error *err)
 {
     (void)fputs("diameter_mm,percent_finer\n", fp);
+    struct sg_csvout_row r = {.fp = fp, .n = 0};
     const struct sg_curve *c = &res->curve;
     if (c->n >= 2 && per_decade > 0) {
         const double x0 = c->log10_d[0], x1 = c->log10_d[c->n - 1];
@@ -220,9 +250,9 @@ enum sg_status sg_csvout_curve(FILE *fp, const struct sg_result *res, unsigned p
             double p = NAN;
             if (sg_curve_percent_at(c, d, &p, NULL) != SG_OK)
                 continue;
-            num(fp, d, true);
-            num(fp, p, false);
-            (void)fputc('\n', fp);
+            num(&r, d, true);
+            num(&r, p, false);
+            sg_csvout_end_row(&r);
         }
     }
     return finish(fp, err);
@@ -233,27 +263,28 @@ enum sg_status sg_csvout_batch(FILE *fp, const struct sg_result *const *results,
 {
     /* The columns are the quantities of the first fully reduced result. */
     const struct sg_result *model = NULL;
+    struct sg_csvout_row out = {.fp = fp, .n = 0};
     for (size_t i = 0; i < n && model == NULL; i++)
         if (results[i] != NULL && results[i]->n_quantities > 0)
             model = results[i];
-    field(fp, "id", true);
-    field(fp, "status", false);
+    sg_csvout_field(&out, "id", true);
+    sg_csvout_field(&out, "status", false);
     for (size_t j = 0; model != NULL && j < model->n_quantities; j++)
-        field(fp, model->quantities[j].name, false);
-    (void)fputc('\n', fp);
+        sg_csvout_field(&out, model->quantities[j].name, false);
+    sg_csvout_end_row(&out);
     for (size_t i = 0; i < n; i++) {
         const struct sg_result *r = results[i];
-        field(fp, r ? r->id : "", true);
-        field(fp, status[i], false);
+        sg_csvout_field(&out, r ? r->id : "", true);
+        sg_csvout_field(&out, status[i], false);
         for (size_t j = 0; model != NULL && j < model->n_quantities; j++) {
             char value[SG_QTEXT_MAX] = "";
             const struct sg_quantity *q =
                 r && r->n_quantities ? sg_result_quantity(r, model->quantities[j].name) : NULL;
             if (q != NULL)
                 quantity_value(q, value, sizeof value);
-            field(fp, value, false);
+            sg_csvout_field(&out, value, false);
         }
-        (void)fputc('\n', fp);
+        sg_csvout_end_row(&out);
     }
     return finish(fp, err);
 }
