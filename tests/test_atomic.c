@@ -126,3 +126,58 @@ Test(atomic, mkdir_p)
     struct sg_error err;
     cr_assert_eq(sg_mkdir_p(path, &err), SG_EIO);
 }
+
+Test(atomic, new_file_mode_follows_the_umask)
+{
+    /* common practice: a new output file is 0666 less the umask, as cp or a shell redirection makes it */
+    char path[256];
+    snprintf(path, sizeof path, "%s/m.csv", dir);
+    const mode_t old = umask(022);
+    struct sg_atomic_file f;
+    cr_assert_eq(sg_atomic_open(&f, path, NULL), SG_OK);
+    fputs("x\n", f.fp);
+    cr_assert_eq(sg_atomic_commit(&f, NULL), SG_OK);
+    umask(027);
+    char path2[256];
+    snprintf(path2, sizeof path2, "%s/m2.csv", dir);
+    cr_assert_eq(sg_atomic_open(&f, path2, NULL), SG_OK);
+    cr_assert_eq(sg_atomic_commit(&f, NULL), SG_OK);
+    umask(old);
+    struct stat st;
+    cr_assert_eq(stat(path, &st), 0);
+    cr_assert_eq(st.st_mode & 0777, 0644, "mode %o", (unsigned)(st.st_mode & 0777));
+    cr_assert_eq(stat(path2, &st), 0);
+    cr_assert_eq(st.st_mode & 0777, 0640, "mode %o", (unsigned)(st.st_mode & 0777));
+}
+
+Test(atomic, leftover_temporary_file_is_neither_reused_nor_touched)
+{
+    /* a crashed run with the same process id left a file under the first temporary name */
+    char path[256];
+    snprintf(path, sizeof path, "%s/s.csv", dir);
+    struct sg_atomic_file f;
+    cr_assert_eq(sg_atomic_open(&f, path, NULL), SG_OK);
+    char first_tmp[sizeof f.tmp];
+    snprintf(first_tmp, sizeof first_tmp, "%s", f.tmp);
+    sg_atomic_abort(&f);
+    FILE *stale = fopen(first_tmp, "w");
+    cr_assert_not_null(stale);
+    fputs("stale\n", stale);
+    fclose(stale);
+
+    cr_assert_eq(sg_atomic_open(&f, path, NULL), SG_OK);
+    cr_assert_str_neq(f.tmp, first_tmp);
+    fputs("new\n", f.fp);
+    cr_assert_eq(sg_atomic_commit(&f, NULL), SG_OK);
+    char buf[16] = "";
+    FILE *fp = fopen(first_tmp, "r");
+    cr_assert_not_null(fp);
+    cr_assert_not_null(fgets(buf, sizeof buf, fp));
+    fclose(fp);
+    cr_assert_str_eq(buf, "stale\n");
+    fp = fopen(path, "r");
+    cr_assert_not_null(fp);
+    cr_assert_not_null(fgets(buf, sizeof buf, fp));
+    fclose(fp);
+    cr_assert_str_eq(buf, "new\n");
+}

@@ -71,3 +71,42 @@ Test(csvout, summary_quotes_and_empty_values)
     free(text);
     sg_result_release(&r);
 }
+
+Test(csvout, row_writer_quotes_like_rfc4180_and_takes_long_fields)
+{
+    /* RFC 4180, section 2 (rules 6 and 7): a field with a comma, quote or line break is enclosed in quotes
+     * and its quotes are doubled. Fields longer than the row buffer go out whole. */
+    char *out = NULL;
+    size_t len = 0;
+    FILE *fp = open_memstream(&out, &len);
+    cr_assert_not_null(fp);
+    struct sg_csvout_row *r = malloc(sizeof *r);
+    cr_assert_not_null(r);
+    *r = (struct sg_csvout_row){.fp = fp, .n = 0};
+    sg_csvout_field(r, "plain", true);
+    sg_csvout_field(r, "a,b", false);
+    sg_csvout_field(r, "say \"hi\"", false);
+    sg_csvout_field(r, "two\nlines", false);
+    sg_csvout_field(r, "", false);
+    sg_csvout_end_row(r);
+    const size_t big = 3 * sizeof r->buf;
+    char *s = malloc(big + 1);
+    cr_assert_not_null(s);
+    for (size_t i = 0; i < big; i++)
+        s[i] = i % 100 == 99 ? ',' : 'x';
+    s[big] = '\0';
+    sg_csvout_field(r, "id", true);
+    sg_csvout_field(r, s, false);
+    sg_csvout_end_row(r);
+    fclose(fp);
+    const char *first = "plain,\"a,b\",\"say \"\"hi\"\"\",\"two\nlines\",\n";
+    cr_assert_eq(strncmp(out, first, strlen(first)), 0, "%s", out);
+    const char *second = out + strlen(first);
+    cr_assert_eq(strlen(second), strlen("id,\"") + big + strlen("\"\n"));
+    cr_assert_eq(strncmp(second, "id,\"", 4), 0);
+    cr_assert_eq(memcmp(second + 4, s, big), 0);
+    cr_assert_str_eq(second + 4 + big, "\"\n");
+    free(s);
+    free(r);
+    free(out);
+}
