@@ -20,13 +20,22 @@ static const double pow10_exact[23] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6, 
  * the 1e-6 tie guard, so the digits equal printf's correctly rounded ones. */
 static bool six_digits(double a, int *e, long *m)
 {
-    int ex = (int)floor(log10(a));
+    /* floor(log10(a)) from the binary exponent (a = f 2^e2, 0.5 <= f < 1):
+     * (e2 - 1) log10(2) is at most one below it, and the loop below moves
+     * ex up when the scaled value has seven digits (no log10 call) */
+    int e2 = 0;
+    (void)frexp(a, &e2);
+    int ex = (int)floor((double)(e2 - 1) * 0.30102999566398120);
     for (int tries = 0; tries < 3; tries++) {
         const int k = 5 - ex;
         if (k > 22 || k < -22)
             return false;
         const double s = k >= 0 ? a * pow10_exact[k] : a / pow10_exact[-k];
-        const double fl = floor(s), frac = s - fl;
+        if (!(s < 1e7)) { /* ex one low: next try */
+            ex++;
+            continue;
+        }
+        const double fl = (double)(long)s, frac = s - fl; /* s > 0: truncation is floor */
         if (fabs(frac - 0.5) < 1e-6)
             return false;
         const long v = (long)fl + (frac > 0.5);
@@ -248,7 +257,7 @@ enum sg_status sg_csvout_curve(FILE *fp, const struct sg_result *res, unsigned p
             const double x = i == n ? x1 : x0 + (double)i * step;
             const double d = pow(10.0, x);
             double p = NAN;
-            if (sg_curve_percent_at(c, d, &p, NULL) != SG_OK)
+            if (sg_curve_percent_at_log10(c, d, x, &p, NULL) != SG_OK)
                 continue;
             num(&r, d, true);
             num(&r, p, false);
