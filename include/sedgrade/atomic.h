@@ -1,6 +1,8 @@
 /* atomic.h - write a file so that it appears complete or not at all: the
- * content goes to a temporary file in the same folder, is flushed to disk and
- * renamed over the final name. A failed write leaves nothing behind. */
+ * content goes to a temporary file in the same folder (an unnamed one where
+ * Linux offers O_TMPFILE, else a hidden named one), is flushed to disk and
+ * only then given the final name (linked, or renamed over an old file). A
+ * failed write leaves nothing behind. */
 #ifndef SEDGRADE_ATOMIC_H
 #define SEDGRADE_ATOMIC_H
 
@@ -14,6 +16,7 @@ struct sg_atomic_file {
     char tmp[4096];    /* temporary name in the same folder */
     int durable;       /* set non-zero after open to fsync before the rename (register
                           history); results skip it: a crash leaves the old file or none */
+    int unnamed;       /* fp is an unnamed file (O_TMPFILE), linked under path on commit */
 };
 
 /* Creates a temporary file next to path and opens it for writing (fp).
