@@ -98,6 +98,7 @@ Test(csvout, row_writer_quotes_like_rfc4180_and_takes_long_fields)
     sg_csvout_field(r, "id", true);
     sg_csvout_field(r, s, false);
     sg_csvout_end_row(r);
+    sg_csvout_flush(r);
     fclose(fp);
     const char *first = "plain,\"a,b\",\"say \"\"hi\"\"\",\"two\nlines\",\n";
     cr_assert_eq(strncmp(out, first, strlen(first)), 0, "%s", out);

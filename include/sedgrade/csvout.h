@@ -27,10 +27,10 @@ enum sg_status sg_csvout_curve(FILE *fp, const struct sg_result *res, unsigned p
 enum sg_status sg_csvout_batch(FILE *fp, const struct sg_result *const *results, const char *const *status,
                                size_t n, struct sg_error *err);
 
-/* A row assembled in memory and handed to stdio in one fwrite when it ends
- * (a per-test file has hundreds of fields: a stdio call per character, as
+/* Rows assembled in memory and handed to stdio in large fwrites (a
+ * per-test file has hundreds of fields: a stdio call per character, as
  * csv_fwrite makes, or per field costs more than the numbers). Quoting by
- * libcsv's csv_write. Initialise with {.fp = fp}. */
+ * libcsv's csv_write. Initialise with {.fp = fp}; end with sg_csvout_flush. */
 struct sg_csvout_row {
     FILE *fp;
     size_t n;
@@ -41,8 +41,12 @@ struct sg_csvout_row {
  * with a separator before it unless first. */
 void sg_csvout_field(struct sg_csvout_row *r, const char *s, bool first);
 
-/* Ends the row with '\n' and writes it out (errors show on ferror(fp)). */
+/* Ends the row with '\n'; rows are written out when the buffer is half
+ * full (errors show on ferror(fp)). */
 void sg_csvout_end_row(struct sg_csvout_row *r);
+
+/* Writes out the rows still held (call before closing or flushing fp). */
+void sg_csvout_flush(struct sg_csvout_row *r);
 
 /* Formats a number as the CSV files do (%.6g; "" for NaN). buf >= 32 bytes. */
 void sg_csvout_number(double x, char *buf, size_t size);

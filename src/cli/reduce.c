@@ -803,6 +803,7 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
         }
         sg_csvout_end_row(row);
     }
+    sg_csvout_flush(row);
     free(row);
     st = sg_atomic_commit(&f, err);
 cleanup:

@@ -158,14 +158,25 @@ void sg_csvout_end_row(struct sg_csvout_row *r)
     if (r->n + 1 > sizeof r->buf)
         row_flush(r);
     r->buf[r->n++] = '\n';
+    if (r->n > sizeof r->buf / 2) /* whole rows go out in large writes */
+        row_flush(r);
+}
+
+void sg_csvout_flush(struct sg_csvout_row *r)
+{
     row_flush(r);
 }
 
+/* A number goes straight into the row: its characters (digits, sign,
+ * point, exponent) never need quotes. */
 static void num(struct sg_csvout_row *r, double x, bool first)
 {
-    char buf[32];
-    sg_csvout_number(x, buf, sizeof buf);
-    sg_csvout_field(r, buf, first);
+    if (r->n + 40 > sizeof r->buf)
+        row_flush(r);
+    if (!first)
+        r->buf[r->n++] = ',';
+    sg_csvout_number(x, r->buf + r->n, 32);
+    r->n += strlen(r->buf + r->n);
 }
 
 static enum sg_status finish(FILE *fp, struct sg_error *err)
@@ -208,6 +219,7 @@ enum sg_status sg_csvout_points(FILE *fp, const struct sg_result *res, bool with
             num(&r, p->percent_finer_u, false);
         sg_csvout_end_row(&r);
     }
+    sg_csvout_flush(&r);
     return finish(fp, err);
 }
 
@@ -240,6 +252,7 @@ enum sg_status sg_csvout_summary(FILE *fp, const struct sg_result *res, bool wit
         }
         sg_csvout_end_row(&r);
     }
+    sg_csvout_flush(&r);
     return finish(fp, err);
 }
 
@@ -253,17 +266,28 @@ enum sg_status sg_csvout_curve(FILE *fp, const struct sg_result *res, unsigned p
         const double x0 = c->log10_d[0], x1 = c->log10_d[c->n - 1];
         const double step = 1.0 / per_decade;
         const size_t n = (size_t)ceil((x1 - x0) / step - 1e-9);
-        for (size_t i = 0; i <= n; i++) {
-            const double x = i == n ? x1 : x0 + (double)i * step;
-            const double d = pow(10.0, x);
-            double p = NAN;
-            if (sg_curve_percent_at_log10(c, d, x, &p, NULL) != SG_OK)
-                continue;
-            num(&r, d, true);
-            num(&r, p, false);
-            sg_csvout_end_row(&r);
+        /* the sizes in increasing order, read in one walk per chunk */
+        enum { CHUNK = 64 };
+        double x[CHUNK], d[CHUNK], p[CHUNK];
+        enum sg_status pst[CHUNK];
+        for (size_t i0 = 0; i0 <= n; i0 += CHUNK) {
+            const size_t m = n + 1 - i0 < CHUNK ? n + 1 - i0 : CHUNK;
+            for (size_t j = 0; j < m; j++) {
+                const size_t i = i0 + j;
+                x[j] = i == n ? x1 : x0 + (double)i * step;
+                d[j] = pow(10.0, x[j]);
+            }
+            sg_curve_percent_at_sorted(c, d, x, m, p, pst);
+            for (size_t j = 0; j < m; j++) {
+                if (pst[j] != SG_OK)
+                    continue;
+                num(&r, d[j], true);
+                num(&r, p[j], false);
+                sg_csvout_end_row(&r);
+            }
         }
     }
+    sg_csvout_flush(&r);
     return finish(fp, err);
 }
 
@@ -295,5 +319,6 @@ enum sg_status sg_csvout_batch(FILE *fp, const struct sg_result *const *results,
         }
         sg_csvout_end_row(&out);
     }
+    sg_csvout_flush(&out);
     return finish(fp, err);
 }
