@@ -26,6 +26,20 @@ Test(csvout, number_edge_cases)
                          63.0,      100.0,      4.9e-324,   1.7976931348623157e308};
     for (size_t i = 0; i < sizeof xs / sizeof xs[0]; i++)
         same_as_printf(xs[i]);
+    /* every binary exponent, at both ends of its octave (the decimal exponent is estimated from it) */
+    for (int e = -1074; e <= 1023; e++) {
+        same_as_printf(ldexp(1.0, e));
+        same_as_printf(ldexp(1.9999999999999998, e - 1 < -1074 ? -1074 : e - 1));
+        same_as_printf(-ldexp(1.4142135623730951, e));
+    }
+    /* the powers of ten and their neighbours */
+    for (int k = -300; k <= 300; k++) {
+        const double p = pow(10.0, k);
+        same_as_printf(p);
+        same_as_printf(nextafter(p, 0.0));
+        same_as_printf(nextafter(p, INFINITY));
+        same_as_printf(p * 0.9999995);
+    }
     char buf[32];
     sg_csvout_number(-0.0, buf, sizeof buf);
     cr_assert_str_eq(buf, "0");

@@ -5,6 +5,7 @@
 #include <stdbool.h>
 #include <errno.h>
 #include <math.h>
+#include <stdint.h>
 #include <string.h>
 
 #include "sedgrade/qc.h"
@@ -24,8 +25,17 @@ static bool six_digits(double a, int *e, long *m)
      * (e2 - 1) log10(2) is at most one below it, and the loop below moves
      * ex up when the scaled value has seven digits (no log10 call) */
     int e2 = 0;
-    (void)frexp(a, &e2);
-    int ex = (int)floor((double)(e2 - 1) * 0.30102999566398120);
+    uint64_t bits;
+    memcpy(&bits, &a, sizeof bits);
+    const int biased = (int)((bits >> 52) & 0x7ffu);
+    if (biased > 0) /* normal: the exponent field is frexp's e2 plus 1022 */
+        e2 = biased - 1022;
+    else
+        (void)frexp(a, &e2);
+    /* floor((e2 - 1) * 1233 / 4096), 1233 / 4096 = 0.30103 - 5e-6: at most
+     * one below floor((e2 - 1) log10(2)) over the double range */
+    const int t = (e2 - 1) * 1233;
+    int ex = t >= 0 ? t / 4096 : -((-t + 4095) / 4096);
     for (int tries = 0; tries < 3; tries++) {
         const int k = 5 - ex;
         if (k > 22 || k < -22)
@@ -55,13 +65,13 @@ static bool six_digits(double a, int *e, long *m)
 /* printf's "%.6g" for a finite non-zero x, without printf on the common path:
  * the CSV writers format hundreds of numbers per test (test_csvout compares
  * it with snprintf on millions of values). */
-static void format_g6(double x, char *buf, size_t size)
+static size_t format_g6(double x, char *buf, size_t size)
 {
     int e = 0;
     long m = 0;
     if (!six_digits(fabs(x), &e, &m)) {
-        (void)snprintf(buf, size, "%.6g", x);
-        return;
+        const int w = snprintf(buf, size, "%.6g", x);
+        return w < 0 ? 0 : (size_t)w < size ? (size_t)w : size - 1;
     }
     char dig[6];
     for (int i = 5; i >= 0; i--, m /= 10)
@@ -104,23 +114,37 @@ static void format_g6(double x, char *buf, size_t size)
             out[n++] = dig[i];
     }
     out[n] = '\0';
-    if (n < size)
+    if (n < size) {
         memcpy(buf, out, n + 1);
-    else
-        (void)snprintf(buf, size, "%s", out);
+        return n;
+    }
+    (void)snprintf(buf, size, "%s", out);
+    return size - 1;
+}
+
+/* sg_csvout_number, returning the length written. */
+static size_t number_into(double x, char *buf, size_t size)
+{
+    if (!isfinite(x)) {
+        buf[0] = '\0';
+        return 0;
+    }
+    if (x == 0.0) { /* also -0: no "-0" */
+        buf[0] = '0';
+        buf[1] = '\0';
+        return 1;
+    }
+    return format_g6(x, buf, size);
 }
 
 void sg_csvout_number(double x, char *buf, size_t size)
 {
-    if (!isfinite(x)) {
-        buf[0] = '\0';
+    if (size < 2) {
+        if (size == 1)
+            buf[0] = '\0';
         return;
     }
-    if (x == 0.0) { /* also -0: no "-0" */
-        (void)snprintf(buf, size, "0");
-        return;
-    }
-    format_g6(x, buf, size);
+    (void)number_into(x, buf, size);
 }
 
 static void row_flush(struct sg_csvout_row *r)
@@ -175,8 +199,7 @@ static void num(struct sg_csvout_row *r, double x, bool first)
         row_flush(r);
     if (!first)
         r->buf[r->n++] = ',';
-    sg_csvout_number(x, r->buf + r->n, 32);
-    r->n += strlen(r->buf + r->n);
+    r->n += number_into(x, r->buf + r->n, 32);
 }
 
 static enum sg_status finish(FILE *fp, struct sg_error *err)
