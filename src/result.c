@@ -110,7 +110,12 @@ static struct sg_quantity *next_row(struct sg_result *r)
  * row is written about 70 times per reduction). */
 static void fill_row(struct sg_quantity *q, const char *unit, const char *note)
 {
-    copy_text(q->unit, sizeof q->unit, unit);
+    /* units are a few bytes: a byte loop beats strlen and memcpy calls */
+    size_t i = 0;
+    if (unit != NULL)
+        for (; i + 1 < sizeof q->unit && unit[i] != '\0'; i++)
+            q->unit[i] = unit[i];
+    q->unit[i] = '\0';
     copy_text(q->note, sizeof q->note, note);
     q->text[0] = '\0';
     q->determined = false;
