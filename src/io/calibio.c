@@ -30,6 +30,8 @@ struct buf {
 
 static bool buf_add(struct buf *b, const char *s, size_t len)
 {
+    if (len > SIZE_MAX / 2 - b->n) /* no size that large is real; keeps the sums below from wrapping */
+        return false;
     if (b->n + len + 1 > b->cap) {
         size_t cap = b->cap ? b->cap : 256;
         while (cap < b->n + len + 1)
