@@ -41,6 +41,10 @@ struct sg_csvout_row {
  * with a separator before it unless first. */
 void sg_csvout_field(struct sg_csvout_row *r, const char *s, bool first);
 
+/* Appends len bytes that already form a CSV field (quoted where needed),
+ * with a separator before them unless first. */
+void sg_csvout_raw_field(struct sg_csvout_row *r, const char *s, size_t len, bool first);
+
 /* Ends the row with '\n'; rows are written out when the buffer is half
  * full (errors show on ferror(fp)). */
 void sg_csvout_end_row(struct sg_csvout_row *r);

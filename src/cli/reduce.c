@@ -3,6 +3,7 @@
  * per-test files and the batch summary, and map the outcome to an exit status. */
 #define _XOPEN_SOURCE 700 /* realpath */
 #include <dirent.h>
+#include <csv.h>
 #include <errno.h>
 #include <getopt.h>
 #include <limits.h>
@@ -143,9 +144,16 @@ static void path_list_release(struct path_list *l)
     l->n = l->cap = 0;
 }
 
-static int cmp_str(const void *a, const void *b)
+/* A folder entry while walking: its path and whether the listing named it
+ * a regular file. */
+struct entry {
+    char *path;
+    bool regular;
+};
+
+static int cmp_entry(const void *a, const void *b)
 {
-    return strcmp(*(char *const *)a, *(char *const *)b);
+    return strcmp(((const struct entry *)a)->path, ((const struct entry *)b)->path);
 }
 
 static bool has_csv_suffix(const char *name)
@@ -172,35 +180,64 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
         (*problems)++;
         return true;
     }
-    struct path_list here = {0};
+    struct entry *here = NULL;
+    size_t n_here = 0, cap_here = 0;
     bool ok = true;
     const struct dirent *e;
     while (ok && (e = readdir(d)) != NULL) {
         if (e->d_name[0] == '.')
             continue;
+        bool regular = false;
+#ifdef DT_REG
+        /* a regular file the listing already names as one needs no stat
+         * (an archive folder holds thousands); anything else is checked */
+        regular = e->d_type == DT_REG;
+        if (regular && !has_csv_suffix(e->d_name))
+            continue;
+#endif
         char path[PATH_MAX];
         if (snprintf(path, sizeof path, "%s/%s", dir, e->d_name) >= (int)sizeof path)
             continue;
-        ok = path_list_add(&here, path);
+        if (n_here == cap_here) {
+            const size_t cap = cap_here ? 2 * cap_here : 64;
+            struct entry *p = realloc(here, cap * sizeof *p);
+            if (p == NULL) {
+                ok = false;
+                break;
+            }
+            here = p;
+            cap_here = cap;
+        }
+        here[n_here].path = strdup(path);
+        here[n_here].regular = regular;
+        ok = here[n_here].path != NULL;
+        n_here += ok;
     }
     closedir(d);
-    if (here.n > 0)
-        qsort(here.items, here.n, sizeof *here.items, cmp_str);
-    for (size_t i = 0; ok && i < here.n; i++) {
+    if (n_here > 0)
+        qsort(here, n_here, sizeof *here, cmp_entry);
+    for (size_t i = 0; ok && i < n_here; i++) {
+        const char *path = here[i].path;
+        if (here[i].regular) {
+            ok = path_list_add(out, path);
+            continue;
+        }
         struct stat st;
-        if (stat(here.items[i], &st) != 0) {
-            if (has_csv_suffix(here.items[i])) {
-                sg_cli_errorf("%s: cannot read: %s", here.items[i], strerror(errno));
+        if (stat(path, &st) != 0) {
+            if (has_csv_suffix(path)) {
+                sg_cli_errorf("%s: cannot read: %s", path, strerror(errno));
                 (*problems)++;
             }
             continue;
         }
         if (S_ISDIR(st.st_mode))
-            ok = walk(here.items[i], skip_real, out, depth + 1, problems);
-        else if (has_csv_suffix(here.items[i]))
-            ok = path_list_add(out, here.items[i]);
+            ok = walk(path, skip_real, out, depth + 1, problems);
+        else if (has_csv_suffix(path))
+            ok = path_list_add(out, path);
     }
-    path_list_release(&here);
+    for (size_t i = 0; i < n_here; i++)
+        free(here[i].path);
+    free(here);
     return ok;
 }
 
@@ -341,7 +378,11 @@ static size_t join_quantities(const struct sg_result *res, bool names, char **bu
             v = q->text;
         else
             sg_csvout_number(q->value, num, sizeof num);
-        const size_t vlen = strlen(v), need = len + vlen + 2;
+        /* values go into the spill already quoted for CSV (the workers do it in
+         * parallel; the batch summary then copies them) */
+        const size_t vlen0 = strlen(v);
+        const bool quote = !names && strpbrk(v, ",\"\r\n") != NULL;
+        const size_t vlen = quote ? 2 * vlen0 + 2 : vlen0, need = len + vlen + 2;
         if (need > *cap) {
             size_t c = *cap ? *cap : 1024;
             while (c < need)
@@ -354,8 +395,12 @@ static size_t join_quantities(const struct sg_result *res, bool names, char **bu
         }
         if (i > 0)
             (*buf)[len++] = '\x1f';
-        memcpy(*buf + len, v, vlen);
-        len += vlen;
+        if (quote) {
+            len += csv_write(*buf + len, vlen, v, vlen0);
+        } else {
+            memcpy(*buf + len, v, vlen);
+            len += vlen;
+        }
     }
     if (*cap == 0) {
         char *p = malloc(1);
@@ -799,7 +844,8 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
         const size_t *map = &col_of[job->schema * MAX_COLUMNS];
         for (size_t j = 0; j < n_cols; j++) {
             const size_t q = nv > 0 ? map[j] : 0;
-            sg_csvout_field(row, q > 0 && q <= nv ? vals[q - 1] : "", false);
+            const char *v = q > 0 && q <= nv ? vals[q - 1] : ""; /* quoted by the worker */
+            sg_csvout_raw_field(row, v, strlen(v), false);
         }
         sg_csvout_end_row(row);
     }

@@ -177,6 +177,23 @@ void sg_csvout_field(struct sg_csvout_row *r, const char *s, bool first)
     }
 }
 
+void sg_csvout_raw_field(struct sg_csvout_row *r, const char *s, size_t len, bool first)
+{
+    if (r->n + len + 1 > sizeof r->buf) {
+        row_flush(r);
+        if (len + 1 > sizeof r->buf) {
+            if (!first)
+                (void)fputc(',', r->fp);
+            (void)fwrite(s, 1, len, r->fp);
+            return;
+        }
+    }
+    if (!first)
+        r->buf[r->n++] = ',';
+    memcpy(r->buf + r->n, s, len);
+    r->n += len;
+}
+
 void sg_csvout_end_row(struct sg_csvout_row *r)
 {
     if (r->n + 1 > sizeof r->buf)
