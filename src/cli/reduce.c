@@ -728,12 +728,14 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
     size_t n_cols = 0;
     const size_t n_schemas = b->schemas.n;
     size_t *col_of = calloc((n_schemas ? n_schemas : 1) * MAX_COLUMNS, sizeof *col_of);
+    size_t *n_fields = calloc(n_schemas ? n_schemas : 1, sizeof *n_fields);
+    bool *identity = calloc(n_schemas ? n_schemas : 1, sizeof *identity);
     size_t *order = NULL;
     char *vals[MAX_COLUMNS];
     char *buf = NULL;
     size_t cap = 0;
     enum sg_status st = SG_OK;
-    if (col_of == NULL) {
+    if (col_of == NULL || n_fields == NULL || identity == NULL) {
         st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
         goto cleanup;
     }
@@ -768,6 +770,7 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
             goto cleanup;
         }
         const size_t nf = split_fields(copy, fields, MAX_COLUMNS);
+        n_fields[s] = nf;
         for (size_t i = 0; i < nf; i++) {
             size_t j = 0;
             while (j < n_cols && strcmp(cols[j], fields[i]) != 0)
@@ -784,6 +787,13 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
                 col_of[s * MAX_COLUMNS + j] = i + 1;
         }
         free(copy);
+    }
+    /* a schema whose fields are the columns in order (the usual case: one
+     * kind of record) has its spilled values copied as they are */
+    for (size_t s = 0; s < n_schemas; s++) {
+        identity[s] = n_fields[s] == n_cols;
+        for (size_t j = 0; identity[s] && j < n_cols; j++)
+            identity[s] = col_of[s * MAX_COLUMNS + j] == j + 1;
     }
     const size_t n_spill = atomic_load(&b->n_spill);
     for (size_t w = 0; w < n_spill && w < MAX_WORKERS; w++)
@@ -839,6 +849,15 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
                 goto cleanup;
             }
             buf[job->spill_len] = '\0';
+            if (job->schema < n_schemas && identity[job->schema]) {
+                for (size_t k = 0; k < job->spill_len; k++)
+                    if (buf[k] == '\x1f')
+                        buf[k] = ',';
+                if (n_cols > 0)
+                    sg_csvout_raw_field(row, buf, job->spill_len, false);
+                sg_csvout_end_row(row);
+                continue;
+            }
             nv = split_fields(buf, vals, MAX_COLUMNS);
         }
         const size_t *map = &col_of[job->schema * MAX_COLUMNS];
@@ -857,6 +876,8 @@ cleanup:
         free(cols[j]);
     free(order);
     free(col_of);
+    free(n_fields);
+    free(identity);
     free(buf);
     return st;
 }
