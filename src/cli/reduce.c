@@ -2,6 +2,7 @@
  * or folders walked for *.csv), reduce them on a pool of threads, write the
  * per-test files and the batch summary, and map the outcome to an exit status. */
 #define _XOPEN_SOURCE 700 /* realpath */
+#define _DEFAULT_SOURCE    /* DT_REG: the file type readdir reports */
 #include <dirent.h>
 #include <csv.h>
 #include <errno.h>
