@@ -30,16 +30,25 @@ done
 [ -x /usr/bin/time ] || { echo "bench: /usr/bin/time is needed (apt-get install time)" >&2; exit 3; }
 mkdir -p "$out"
 
-# best_of CMD...: runs CMD $runs times; sets best_s, cpu_s (user + system
-# seconds) and rss_kb (peak RSS) of the fastest run, and last_rc; the tally
-# line of the last run in tally. CPU seconds tell the work apart from waiting
-# when other jobs load the machine.
+# best_of OUTVAR CMD...: runs CMD $runs times, each into a new output folder
+# (CMD's "@OUT@" argument); sets best_s, cpu_s (user + system seconds) and
+# rss_kb (peak RSS) of the fastest run, last_rc, the folder of the last run
+# in last_out, and the tally line of the last run in tally. CPU seconds
+# tell the work apart from waiting when other jobs load the machine.
+# Nothing is deleted between timed runs: ext4 steps over inodes freed in
+# the last minutes when it allocates new ones, so deleting 30,000 files
+# just before a run slows it down by seconds (all output folders go at the
+# end of the benchmark). sync before each run writes back the previous one.
+run_no=0
 best_of() {
   best_s=; cpu_s=; rss_kb=; last_rc=0; tally=
   for _ in $(seq "$runs"); do
-    rm -rf "$out/res"
+    run_no=$((run_no + 1))
+    last_out=$out/run.$run_no
+    local args=()
+    for a in "$@"; do [ "$a" = "@OUT@" ] && args+=("$last_out") || args+=("$a"); done
     sync
-    /usr/bin/time -f '%e %M %U %S' -o "$out/time.txt" "$@" 2>"$out/stderr.txt" >/dev/null
+    /usr/bin/time -f '%e %M %U %S' -o "$out/time.txt" "${args[@]}" 2>"$out/stderr.txt" >/dev/null
     last_rc=$?
     read -r s kb us ss < <(tail -n 1 "$out/time.txt")
     tally=$(grep -v '^Command exited' "$out/stderr.txt" | tail -n 1)
@@ -56,6 +65,7 @@ verdict() { # verdict N SECONDS TARGET
 
 status=0
 rows=()
+rm -rf "$out"/run.* "$out/res" # left by an interrupted benchmark (before any timing)
 echo "bench: $(nproc) processors, load average $(cut -d' ' -f1-3 /proc/loadavg), best of $runs runs"
 for n in $sizes; do
   arch=$out/archive_$n
@@ -68,30 +78,21 @@ for n in $sizes; do
     echo "bench: generated $n records in $arch ($(awk -v a="$t0" -v b="$(date +%s.%N)" 'BEGIN { printf "%.2f", b - a }') s)"
   fi
 
-  best_of "$prog" reduce "$arch" -o "$out/res" --calibration "$register" "${jobs[@]}"
+  best_of "$prog" reduce "$arch" -o @OUT@ --calibration "$register" "${jobs[@]}"
   [ "$last_rc" -le 2 ] || { echo "bench: sedgrade reduce failed (exit $last_rc)" >&2; cat "$out/stderr.txt" >&2; status=1; }
-  nfiles=$(find "$out/res" -type f | wc -l)
+  nfiles=$(find "$last_out" -type f | wc -l)
   rows+=("$(printf '%-8s %-15s %7s %7s %7.1f  %-16s %s' "$n" "default" "$best_s" "$cpu_s" "$(awk -v k="$rss_kb" 'BEGIN { print k / 1024 }')" "$(verdict "$n" "$best_s" "$target_default_s")" "$tally")")
 
-  # The floor: cp -r creating the very files the run wrote.
-  rm -rf "$out/floor_src"; mv "$out/res" "$out/floor_src"
-  floor_best=; floor_cpu=
-  for _ in $(seq "$runs"); do
-    rm -rf "$out/floor_dst"; sync
-    /usr/bin/time -f '%e %M %U %S' -o "$out/time.txt" cp -r "$out/floor_src" "$out/floor_dst"
-    read -r s _ us ss < <(tail -n 1 "$out/time.txt")
-    if [ -z "$floor_best" ] || awk -v a="$s" -v b="$floor_best" 'BEGIN { exit !(a < b) }'; then
-      floor_best=$s; floor_cpu=$(awk -v u="$us" -v y="$ss" 'BEGIN { printf "%.2f", u + y }')
-    fi
-  done
-  rm -rf "$out/floor_src" "$out/floor_dst"
-  rows+=("$(printf '%-8s %-15s %7s %7s %7s  %-16s %s' "$n" "cp -r (floor)" "$floor_best" "$floor_cpu" "-" "-" "$nfiles files")")
+  # The floor: cp -r creating the very files the run wrote, into new folders too.
+  floor_src=$last_out
+  best_of cp -r "$floor_src" @OUT@
+  rows+=("$(printf '%-8s %-15s %7s %7s %7s  %-16s %s' "$n" "cp -r (floor)" "$best_s" "$cpu_s" "-" "-" "$nfiles files")")
 
-  best_of "$prog" reduce "$arch" -o "$out/res" --calibration "$register" --outputs none "${jobs[@]}"
+  best_of "$prog" reduce "$arch" -o @OUT@ --calibration "$register" --outputs none "${jobs[@]}"
   [ "$last_rc" -le 2 ] || { echo "bench: sedgrade reduce --outputs none failed (exit $last_rc)" >&2; status=1; }
   rows+=("$(printf '%-8s %-15s %7s %7s %7.1f  %-16s %s' "$n" "--outputs none" "$best_s" "$cpu_s" "$(awk -v k="$rss_kb" 'BEGIN { print k / 1024 }')" "$(verdict "$n" "$best_s" "$target_none_s")" "$tally")")
-  rm -rf "$out/res"
 done
+rm -rf "$out"/run.*
 
 echo
 printf '%-8s %-15s %7s %7s %7s  %-16s %s\n' records outputs wall_s cpu_s rss_MB target "tally / note"
