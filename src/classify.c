@@ -471,6 +471,21 @@ static struct reading fraction(const struct ctx *x, enum bound lower, enum bound
 static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
                                       const struct reading *basis, const char *what)
 {
+    if (x->quiet) { /* the same rows without the notes' reasons: the Monte Carlo draws' path */
+        const bool ok = (upper == B_ZERO || x->pst[upper] == SG_OK) && (lower == B_ZERO || x->pst[lower] == SG_OK);
+        double v = (double)NAN;
+        if (ok) {
+            v = (upper == B_ZERO ? 0.0 : x->p[upper]) - (lower == B_ZERO ? 0.0 : x->p[lower]);
+            if (basis != NULL)
+                v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
+        }
+        struct sg_quantity *q = sg_result_new_quantity(x->res, name, "%", "");
+        if (q == NULL)
+            return nomem(x);
+        q->determined = ok && isfinite(v);
+        q->value = q->determined ? v : (double)NAN;
+        return SG_OK;
+    }
     const struct reading r = fraction(x, lower, upper);
     if (!r.ok)
         return add_undet(x, name, "%", "not determined: %s", r.why);

@@ -5,7 +5,9 @@
 #include <math.h>
 #include <string.h>
 
+#include "sedgrade/calibio.h"
 #include "sedgrade/reduce.h"
+#include "sedgrade/recordio.h"
 
 static void setup(void)
 {
@@ -249,4 +251,91 @@ Test(reduce, sedimentation_coarser_than_finest_sieve_kept_off_curve)
     cr_assert(res.points[4].flags & SG_PF_COARSER_THAN_SIEVE);
     sg_result_release(&res);
     sg_record_release(&rec);
+}
+
+/* The Monte Carlo draws reduce with values_only and batch runs without notes with skip_notes; both must
+ * give the very rows and values of a full reduction (common practice: a fast path is checked against the
+ * full one), on the demo records (with the demo register) and a record built in code. */
+static void same_values(const struct sg_record *rec, const struct sg_constants *k, bool steffen, double extra_dx)
+{
+    struct sg_reduce_options full = sg_reduce_options_default();
+    if (steffen)
+        full.interp = SG_INTERP_MONOTONE;
+    const double dx[1] = {extra_dx};
+    if (extra_dx > 0.0) {
+        full.extra_dx = dx;
+        full.n_extra_dx = 1;
+    }
+    struct sg_reduce_options quiet = full, notes = full;
+    quiet.values_only = true;
+    notes.skip_notes = true;
+    struct sg_result a, b, c;
+    struct sg_error err;
+    sg_result_init(&a);
+    sg_result_init(&b);
+    sg_result_init(&c);
+    cr_assert_eq(sg_reduce(rec, k, &full, &a, &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(sg_reduce(rec, k, &quiet, &b, &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(sg_reduce(rec, k, &notes, &c, &err), SG_OK, "%s", err.msg);
+    const struct sg_result *other[2] = {&b, &c};
+    for (int o = 0; o < 2; o++) {
+        const struct sg_result *r = other[o];
+        /* values_only leaves out the QC and bookkeeping rows that follow the values */
+        if (o == 0) {
+            cr_assert(r->n_quantities <= a.n_quantities, "%s", rec->id);
+            for (size_t i = r->n_quantities; i < a.n_quantities; i++) {
+                const char *n = a.quantities[i].name;
+                cr_assert(strcmp(n, "calibration_used") == 0 || strcmp(n, "sieve_loss_pct") == 0 ||
+                              strcmp(n, "qc_status") == 0 || strcmp(n, "qc_flags") == 0,
+                          "%s: %s missing from the values-only rows", rec->id, n);
+            }
+        } else
+            cr_assert_eq(r->n_quantities, a.n_quantities, "%s", rec->id);
+        for (size_t i = 0; i < r->n_quantities; i++) {
+            const struct sg_quantity *x = &a.quantities[i], *y = &r->quantities[i];
+            cr_assert_str_eq(y->name, x->name, "%s row %zu", rec->id, i);
+            cr_assert_eq(y->determined, x->determined, "%s %s", rec->id, x->name);
+            cr_assert_eq(y->is_text, x->is_text, "%s %s", rec->id, x->name);
+            if (!x->determined)
+                continue;
+            if (x->is_text)
+                cr_assert_str_eq(y->text, x->text, "%s %s", rec->id, x->name);
+            else
+                cr_assert(memcmp(&y->value, &x->value, sizeof x->value) == 0, "%s %s: %.17g vs %.17g", rec->id,
+                          x->name, y->value, x->value);
+        }
+        cr_assert_eq(r->n_points, a.n_points);
+        for (size_t i = 0; i < a.n_points; i++) {
+            cr_assert(memcmp(&r->points[i].percent_finer, &a.points[i].percent_finer, sizeof(double)) == 0);
+            cr_assert(memcmp(&r->points[i].diameter_mm, &a.points[i].diameter_mm, sizeof(double)) == 0);
+        }
+    }
+    sg_result_release(&a);
+    sg_result_release(&b);
+    sg_result_release(&c);
+}
+
+Test(reduce, values_only_and_skip_notes_give_the_full_values)
+{
+    struct sg_record rec;
+    v2b_record(&rec);
+    struct sg_constants k;
+    sg_constants_from_record(&rec, &k);
+    same_values(&rec, &k, false, 0.0);
+    same_values(&rec, &k, true, 5.0);
+    sg_record_release(&rec);
+
+    static const char *const demo[] = {"KV-BH03-D2", "KV-BH03-D5", "KV-BH07-U4", "KV-BH11-D3", "KV-TP12-B1"};
+    for (size_t i = 0; i < sizeof demo / sizeof demo[0]; i++) {
+        char path[512];
+        snprintf(path, sizeof path, "%s/demo/records/%s.csv", SG_SOURCE_DIR, demo[i]);
+        struct sg_error err;
+        cr_assert_eq(sg_recordio_load(path, &rec, NULL, &err), SG_OK, "%s: %s", path, err.msg);
+        char reg[512];
+        snprintf(reg, sizeof reg, "%s/calibration", SG_SOURCE_DIR);
+        cr_assert_eq(sg_calibio_resolve(reg, &rec, &k, &err), SG_OK, "%s: %s", path, err.msg);
+        same_values(&rec, &k, false, 0.0);
+        same_values(&rec, &k, true, 2.5);
+        sg_record_release(&rec);
+    }
 }
