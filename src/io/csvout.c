@@ -73,13 +73,20 @@ static size_t format_g6(double x, char *buf, size_t size)
         const int w = snprintf(buf, size, "%.6g", x);
         return w < 0 ? 0 : (size_t)w < size ? (size_t)w : size - 1;
     }
+    /* the six digits two at a time (three divisions instead of six) */
+    static const char pairs[] = "00010203040506070809101112131415161718192021222324252627282930313233343536373839"
+                                "40414243444546474849505152535455565758596061626364656667686970717273747576777879"
+                                "8081828384858687888990919293949596979899";
     char dig[6];
-    for (int i = 5; i >= 0; i--, m /= 10)
-        dig[i] = (char)('0' + m % 10);
+    const long hi = m / 10000, mid = m / 100 % 100, lo = m % 100;
+    memcpy(dig, pairs + 2 * hi, 2);
+    memcpy(dig + 2, pairs + 2 * mid, 2);
+    memcpy(dig + 4, pairs + 2 * lo, 2);
     int nd = 6;
     while (nd > 1 && dig[nd - 1] == '0')
         nd--;
-    char out[40];
+    char tmp[40];
+    char *out = size >= sizeof tmp ? buf : tmp; /* straight into buf when it surely fits */
     size_t n = 0;
     if (x < 0)
         out[n++] = '-';
@@ -114,6 +121,8 @@ static size_t format_g6(double x, char *buf, size_t size)
             out[n++] = dig[i];
     }
     out[n] = '\0';
+    if (out == buf)
+        return n;
     if (n < size) {
         memcpy(buf, out, n + 1);
         return n;
@@ -212,11 +221,11 @@ void sg_csvout_flush(struct sg_csvout_row *r)
  * point, exponent) never need quotes. */
 static void num(struct sg_csvout_row *r, double x, bool first)
 {
-    if (r->n + 40 > sizeof r->buf)
+    if (r->n + 41 > sizeof r->buf)
         row_flush(r);
     if (!first)
         r->buf[r->n++] = ',';
-    r->n += number_into(x, r->buf + r->n, 32);
+    r->n += number_into(x, r->buf + r->n, 40);
 }
 
 static enum sg_status finish(FILE *fp, struct sg_error *err)
