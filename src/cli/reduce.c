@@ -1082,6 +1082,12 @@ int sg_cli_reduce(int argc, char **argv)
         path_list_release(&files);
         return SG_EXIT_IO;
     }
+    if (cfg.plot[SG_PLOT_PNG] || cfg.plot[SG_PLOT_SVG] || cfg.plot[SG_PLOT_PDF] || cfg.report) {
+        /* charts are still drawn with another face, but say so once */
+        char family[128];
+        if (sg_plot_font_check(family, sizeof family, &err) != SG_OK)
+            sg_cli_errorf("warning: %s", err.msg);
+    }
 
     struct batch b;
     memset(&b, 0, sizeof b);
