@@ -126,6 +126,71 @@ static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_err
     return st == SG_OK ? SG_OK : nomem(err);
 }
 
+/* Terzaghi's ratios of this test as a filter over the base soil of opt.
+ * The base soil's D85 is required (the CLI checks it); a fine base soil
+ * often has no D15, and then only retention is screened. */
+static enum sg_status add_filter(struct sg_result *res, const struct sg_reduce_options *opt, bool quiet,
+                                 struct sg_error *err)
+{
+    const double d15 = quantity(res, "d15_mm");
+    const double base15 = opt->base_d15_mm, base85 = opt->base_d85_mm;
+    const char *id = opt->base_soil_id;
+    char note[SG_QNOTE_MAX];
+    note[0] = '\0';
+    const bool have = isfinite(d15) && d15 > 0.0 && isfinite(base85) && base85 > 0.0;
+    const bool have_perm = have && isfinite(base15) && base15 > 0.0;
+    struct sg_filter_ratios fr = {(double)NAN, (double)NAN, false, false};
+    if (have) {
+        fr.retention = d15 / base85;
+        fr.retention_ok = fr.retention <= SG_TERZAGHI_RETENTION_MAX;
+    }
+    if (have_perm && sg_screens_terzaghi(base15, base85, d15, &fr, NULL) != SG_OK)
+        return sg_error_set(err, SG_EINVAL, 0, 0, "filter ratios: sizes not usable"); /* checked above */
+    enum sg_status st;
+    if (!quiet) {
+        if (have)
+            (void)snprintf(note, sizeof note,
+                           "D15 %.3g mm of this test / D85 %.3g mm of base soil %.63s; at most %g (Terzaghi "
+                           "retention; a screen)",
+                           d15, base85, id, SG_TERZAGHI_RETENTION_MAX);
+        else
+            (void)snprintf(note, sizeof note, "not determined: %s",
+                           isfinite(d15) ? "the base soil's D85 is not usable" : "D15 of this test is not determined");
+    }
+    if ((st = sg_result_add_value(res, "filter_retention_ratio", "", have ? fr.retention : (double)NAN, note)) !=
+        SG_OK)
+        return nomem(err);
+    if (!quiet) {
+        if (have_perm)
+            (void)snprintf(note, sizeof note,
+                           "D15 %.3g mm of this test / D15 %.3g mm of base soil %.63s; at least %g (Terzaghi "
+                           "permeability; a screen)",
+                           d15, base15, id, SG_TERZAGHI_PERMEABILITY_MIN);
+        else
+            (void)snprintf(note, sizeof note, "not determined: %s",
+                           !isfinite(d15) ? "D15 of this test is not determined"
+                                          : "the base soil's D15 is not determined (its curve does not reach 15 %)");
+    }
+    if ((st = sg_result_add_value(res, "filter_permeability_ratio", "", have_perm ? fr.permeability : (double)NAN,
+                                  note)) != SG_OK)
+        return nomem(err);
+    const char *verdict = !have                                   ? ""
+                          : !have_perm                            ? (fr.retention_ok ? "meets retention" : "fails retention")
+                          : fr.retention_ok && fr.permeability_ok ? "meets both"
+                          : fr.permeability_ok                    ? "fails retention"
+                          : fr.retention_ok                       ? "fails permeability"
+                                                                  : "fails both";
+    if (!quiet)
+        (void)snprintf(note, sizeof note,
+                       "Terzaghi: retention <= %g%s against base soil %.63s; a screen, not a filter design (granular "
+                       "bases; others need the local code's criteria)",
+                       SG_TERZAGHI_RETENTION_MAX, have_perm ? ", permeability >= 4" : " (permeability not checked)",
+                       id);
+    if ((st = sg_result_add_text(res, "filter_screen", verdict, note)) != SG_OK)
+        return nomem(err);
+    return SG_OK;
+}
+
 enum sg_status sg_screens_summarise(const struct sg_record *rec, const struct sg_reduce_options *opt,
                                     struct sg_result *res, struct sg_error *err)
 {
@@ -136,5 +201,7 @@ enum sg_status sg_screens_summarise(const struct sg_record *rec, const struct sg
     enum sg_status st = add_hazen(res, quiet, err);
     if (st == SG_OK)
         st = add_frost(res, quiet, err);
+    if (st == SG_OK && opt != NULL && opt->has_base_soil)
+        st = add_filter(res, opt, quiet, err);
     return st;
 }

@@ -173,3 +173,58 @@ Test(filter, terzaghi_ratios)
     cr_assert_eq(sg_screens_terzaghi(0.05, NAN, 1.0, &r, &e), SG_EINVAL);
     cr_assert_eq(sg_screens_terzaghi(0.05, 0.3, -1.0, &r, &e), SG_EINVAL);
 }
+
+/* Result holding d15_mm, screened as a filter over a base soil (METHODS.md 13.7 #72, read 35). */
+static void run_filter(struct sg_result *res, double d15, double base15, double base85)
+{
+    sg_result_init(res);
+    cr_assert_eq(sg_result_add_value(res, "d15_mm", "mm", d15, ""), SG_OK);
+    struct sg_reduce_options o = sg_reduce_options_default();
+    o.has_base_soil = true;
+    o.base_d15_mm = base15;
+    o.base_d85_mm = base85;
+    strcpy(o.base_soil_id, "BASE-1");
+    struct sg_error e;
+    cr_assert_eq(sg_screens_summarise(NULL, &o, res, &e), SG_OK, "%s", e.msg);
+}
+
+Test(filter, summary_rows_against_a_base_soil)
+{
+    /* METHODS.md 13.7 #72: D15F/D85B <= 4, D15F/D15B >= 4; the ratios are derived from the sizes. */
+    struct sg_result res;
+    run_filter(&res, 0.3, 0.02, 0.1);
+    cr_assert_float_eq(qty(&res, "filter_retention_ratio")->value, 3.0, 1e-12);
+    cr_assert_float_eq(qty(&res, "filter_permeability_ratio")->value, 15.0, 1e-12);
+    cr_assert_str_eq(qty(&res, "filter_screen")->text, "meets both");
+    cr_assert(strstr(qty(&res, "filter_screen")->note, "not a filter design") != NULL);
+    sg_result_release(&res);
+
+    run_filter(&res, 0.5, 0.02, 0.1); /* 5 > 4: the base soil's fines would wash through */
+    cr_assert_str_eq(qty(&res, "filter_screen")->text, "fails retention");
+    sg_result_release(&res);
+
+    run_filter(&res, 0.06, 0.02, 0.1); /* 3 < 4: not free-draining enough */
+    cr_assert_str_eq(qty(&res, "filter_screen")->text, "fails permeability");
+    sg_result_release(&res);
+
+    /* a fine base soil without a D15: retention only, said in the notes */
+    run_filter(&res, 0.3, NAN, 0.1);
+    cr_assert(qty(&res, "filter_retention_ratio")->determined);
+    cr_assert(!qty(&res, "filter_permeability_ratio")->determined);
+    cr_assert(strstr(qty(&res, "filter_permeability_ratio")->note, "base soil's D15") != NULL);
+    cr_assert_str_eq(qty(&res, "filter_screen")->text, "meets retention");
+    sg_result_release(&res);
+
+    /* no D15 for the filter itself: nothing to screen */
+    sg_result_init(&res);
+    cr_assert_eq(sg_result_add_undetermined(&res, "d15_mm", "mm", "no"), SG_OK);
+    struct sg_reduce_options o = sg_reduce_options_default();
+    o.has_base_soil = true;
+    o.base_d15_mm = 0.02;
+    o.base_d85_mm = 0.1;
+    struct sg_error e;
+    cr_assert_eq(sg_screens_summarise(NULL, &o, &res, &e), SG_OK);
+    cr_assert(!qty(&res, "filter_retention_ratio")->determined);
+    cr_assert(!qty(&res, "filter_screen")->determined);
+    sg_result_release(&res);
+}

@@ -51,6 +51,13 @@ struct sg_reduce_options {
     bool skip_notes;             /* every summary note left empty, nothing else changed (QC, flags and
                                     their messages kept): for callers that write no per-test summary
                                     (a batch with --outputs none). Default false. */
+    /* Terzaghi's filter screen of each test as a filter over one base soil
+     * (reduce --base-soil): with has_base_soil the screens add
+     * filter_retention_ratio, filter_permeability_ratio and filter_screen.
+     * Sizes in mm from the base soil's own reduction. Default off. */
+    bool has_base_soil;
+    double base_d15_mm, base_d85_mm;
+    char base_soil_id[64];
 };
 
 /* Defaults: loglinear, default QC limits, no extra D_x. */

@@ -74,7 +74,10 @@ enum sg_status sg_screens_terzaghi(double base_d15_mm, double base_d85_mm, doubl
 
 /* Adds hazen_k_cm_s (cm/s; not determined outside the D10 window, with the
  * reason) and frost_screen (text) to res, reading d10_mm, cu and
- * finer_0_02_mm_pct (or the curve). Notes state the formula, C, units and
+ * finer_0_02_mm_pct (or the curve); with opt->has_base_soil also
+ * filter_retention_ratio, filter_permeability_ratio (this test's D15 over the
+ * base soil's D85 and D15) and filter_screen (text: "meets both",
+ * "fails retention", "fails permeability" or "fails both"). Notes state the formula, C, units and
  * that these are screens. With opt->values_only notes are left out. opt may
  * be NULL. Returns SG_OK or SG_ENOMEM. */
 enum sg_status sg_screens_summarise(const struct sg_record *rec, const struct sg_reduce_options *opt,

@@ -8,6 +8,7 @@
 #include <errno.h>
 #include <getopt.h>
 #include <limits.h>
+#include <math.h>
 #include <pthread.h>
 #include <stdatomic.h>
 #include <stdint.h>
@@ -38,6 +39,7 @@
 struct reduce_cfg {
     const char *out_dir;
     const char *register_dir;
+    const char *base_soil; /* --base-soil record, NULL without */
     struct sg_reduce_options opt;
     double dx[MAX_DX];
     unsigned outputs;
@@ -903,6 +905,7 @@ static const char reduce_help[] =
     "      --dx LIST            extra D-values to report, percent finer (e.g. 5,90,95)\n"
     "      --strict             QC warnings fail the test (exit 1)\n"
     "      --junction-gap PCT   sieve/sedimentation junction gap limit (default 5)\n"
+    "      --base-soil FILE     Terzaghi filter screen of each test over the base soil of FILE\n"
     "  -q, --quiet              no QC lines or tally on stderr\n"
     "  -h, --help               this help\n"
     "\n"
@@ -957,7 +960,7 @@ static bool parse_dx(const char *text, struct reduce_cfg *cfg)
 }
 
 enum opt_id { OPT_CAL = 256, OPT_INTERP, OPT_PLOT, OPT_REPORT, OPT_MC, OPT_SEED, OPT_OUTPUTS, OPT_DX,
-              OPT_STRICT, OPT_GAP };
+              OPT_STRICT, OPT_GAP, OPT_BASE };
 
 /* Parses reduce's options; returns -1 to go on, else an exit status. */
 static int parse_options(int argc, char **argv, struct reduce_cfg *cfg)
@@ -970,7 +973,7 @@ static int parse_options(int argc, char **argv, struct reduce_cfg *cfg)
         {"outputs", required_argument, NULL, OPT_OUTPUTS}, {"dx", required_argument, NULL, OPT_DX},
         {"strict", no_argument, NULL, OPT_STRICT},   {"junction-gap", required_argument, NULL, OPT_GAP},
         {"quiet", no_argument, NULL, 'q'},           {"help", no_argument, NULL, 'h'},
-        {NULL, 0, NULL, 0}};
+        {"base-soil", required_argument, NULL, OPT_BASE}, {NULL, 0, NULL, 0}};
     long ncpu = sysconf(_SC_NPROCESSORS_ONLN);
     cfg->out_dir = "out";
     cfg->register_dir = "calibration";
@@ -1037,6 +1040,7 @@ static int parse_options(int argc, char **argv, struct reduce_cfg *cfg)
                 return SG_EXIT_INPUT;
             cfg->opt.qc.junction_gap_max_pct = d;
             break;
+        case OPT_BASE: cfg->base_soil = optarg; break;
         case 'q': cfg->quiet = true; break;
         case 'h': fputs(reduce_help, stdout); return SG_EXIT_OK;
         case ':': sg_cli_errorf("option %s needs a value (see 'sedgrade reduce --help')", argv[optind - 1]);
@@ -1053,6 +1057,45 @@ static int parse_options(int argc, char **argv, struct reduce_cfg *cfg)
     return -1;
 }
 
+/* --base-soil: reduces that record (register constants as for any test) and
+ * puts its D15 and D85 into the options, for Terzaghi's filter screen. */
+static int load_base_soil(struct reduce_cfg *cfg)
+{
+    struct sg_record rec;
+    struct sg_result res;
+    struct sg_constants k;
+    struct sg_error err;
+    sg_error_clear(&err);
+    sg_record_init(&rec);
+    sg_result_init(&res);
+    enum sg_status st = sg_recordio_load(cfg->base_soil, &rec, NULL, &err);
+    if (st == SG_OK)
+        st = sg_calibio_resolve(cfg->register_dir, &rec, &k, &err);
+    if (st == SG_OK)
+        st = sg_reduce(&rec, &k, &cfg->opt, &res, &err);
+    int rc = -1;
+    if (st != SG_OK) {
+        sg_cli_report(cfg->base_soil, &err);
+        sg_cli_errorf("the base soil '%s' could not be reduced (fix it, or leave out --base-soil)", cfg->base_soil);
+        rc = sg_cli_exit_for(st);
+    } else {
+        const struct sg_quantity *d15 = sg_result_quantity(&res, "d15_mm"), *d85 = sg_result_quantity(&res, "d85_mm");
+        if (d85 == NULL || !d85->determined) {
+            sg_cli_errorf("%s: the filter screen needs the base soil's D85, and its curve gives none (%s)",
+                          cfg->base_soil, d85 != NULL ? d85->note : "no D85 row");
+            rc = SG_EXIT_INPUT;
+        } else {
+            cfg->opt.has_base_soil = true;
+            cfg->opt.base_d15_mm = d15 != NULL && d15->determined ? d15->value : (double)NAN;
+            cfg->opt.base_d85_mm = d85->value;
+            (void)snprintf(cfg->opt.base_soil_id, sizeof cfg->opt.base_soil_id, "%s", rec.id);
+        }
+    }
+    sg_result_release(&res);
+    sg_record_release(&rec);
+    return rc;
+}
+
 int sg_cli_reduce(int argc, char **argv)
 {
     struct reduce_cfg cfg;
@@ -1063,6 +1106,11 @@ int sg_cli_reduce(int argc, char **argv)
     /* Notes are read only from the per-test summary and the report: without
      * them (e.g. --outputs none for an archive) none is formatted. */
     cfg.opt.skip_notes = !(cfg.outputs & OUT_SUMMARY) && !cfg.report;
+    if (cfg.base_soil != NULL) {
+        const int rc = load_base_soil(&cfg);
+        if (rc >= 0)
+            return rc;
+    }
 
     struct path_list files = {0};
     size_t walk_problems = 0;
