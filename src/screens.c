@@ -126,6 +126,24 @@ static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_err
     return st == SG_OK ? SG_OK : nomem(err);
 }
 
+/* One Terzaghi ratio row: D15 of this test over the base soil's size
+ * (what: "D85" or "D15"), with its limit in the note, or not determined
+ * with why_not. */
+static enum sg_status ratio_row(struct sg_result *res, const char *name, bool have, double ratio, double d15,
+                                double base_mm, const char *what, const char *id, double limit, const char *bound,
+                                const char *criterion, const char *why_not, bool quiet)
+{
+    char note[SG_QNOTE_MAX];
+    note[0] = '\0';
+    if (!quiet && have)
+        (void)snprintf(note, sizeof note,
+                       "D15 %.3g mm of this test / %s %.3g mm of base soil %.63s; %s %g (Terzaghi %s; a screen)",
+                       d15, what, base_mm, id, bound, limit, criterion);
+    else if (!quiet)
+        (void)snprintf(note, sizeof note, "not determined: %s", why_not);
+    return sg_result_add_value(res, name, "", have ? ratio : (double)NAN, note);
+}
+
 /* Terzaghi's ratios of this test as a filter over the base soil of opt.
  * The base soil's D85 is required (the CLI checks it); a fine base soil
  * often has no D15, and then only retention is screened. */
@@ -146,33 +164,15 @@ static enum sg_status add_filter(struct sg_result *res, const struct sg_reduce_o
     }
     if (have_perm && sg_screens_terzaghi(base15, base85, d15, &fr, NULL) != SG_OK)
         return sg_error_set(err, SG_EINVAL, 0, 0, "filter ratios: sizes not usable"); /* checked above */
-    enum sg_status st;
-    if (!quiet) {
-        if (have)
-            (void)snprintf(note, sizeof note,
-                           "D15 %.3g mm of this test / D85 %.3g mm of base soil %.63s; at most %g (Terzaghi "
-                           "retention; a screen)",
-                           d15, base85, id, SG_TERZAGHI_RETENTION_MAX);
-        else
-            (void)snprintf(note, sizeof note, "not determined: %s",
-                           isfinite(d15) ? "the base soil's D85 is not usable" : "D15 of this test is not determined");
-    }
-    if ((st = sg_result_add_value(res, "filter_retention_ratio", "", have ? fr.retention : (double)NAN, note)) !=
-        SG_OK)
-        return nomem(err);
-    if (!quiet) {
-        if (have_perm)
-            (void)snprintf(note, sizeof note,
-                           "D15 %.3g mm of this test / D15 %.3g mm of base soil %.63s; at least %g (Terzaghi "
-                           "permeability; a screen)",
-                           d15, base15, id, SG_TERZAGHI_PERMEABILITY_MIN);
-        else
-            (void)snprintf(note, sizeof note, "not determined: %s",
-                           !isfinite(d15) ? "D15 of this test is not determined"
-                                          : "the base soil's D15 is not determined (its curve does not reach 15 %)");
-    }
-    if ((st = sg_result_add_value(res, "filter_permeability_ratio", "", have_perm ? fr.permeability : (double)NAN,
-                                  note)) != SG_OK)
+    if (ratio_row(res, "filter_retention_ratio", have, fr.retention, d15, base85, "D85", id,
+                  SG_TERZAGHI_RETENTION_MAX, "at most", "retention",
+                  isfinite(d15) ? "the base soil's D85 is not usable" : "D15 of this test is not determined",
+                  quiet) != SG_OK ||
+        ratio_row(res, "filter_permeability_ratio", have_perm, fr.permeability, d15, base15, "D15", id,
+                  SG_TERZAGHI_PERMEABILITY_MIN, "at least", "permeability",
+                  !isfinite(d15) ? "D15 of this test is not determined"
+                                 : "the base soil's D15 is not determined (its curve does not reach 15 %)",
+                  quiet) != SG_OK)
         return nomem(err);
     const char *verdict = !have                                   ? ""
                           : !have_perm                            ? (fr.retention_ok ? "meets retention" : "fails retention")
@@ -182,11 +182,11 @@ static enum sg_status add_filter(struct sg_result *res, const struct sg_reduce_o
                                                                   : "fails both";
     if (!quiet)
         (void)snprintf(note, sizeof note,
-                       "Terzaghi: retention <= %g%s against base soil %.63s; a screen, not a filter design (granular "
-                       "bases; others need the local code's criteria)",
-                       SG_TERZAGHI_RETENTION_MAX, have_perm ? ", permeability >= 4" : " (permeability not checked)",
+                       "Terzaghi: retention <= %g, permeability >= %g%s against base soil %.63s; a screen, not a "
+                       "filter design (granular bases; others need the local code's criteria)",
+                       SG_TERZAGHI_RETENTION_MAX, SG_TERZAGHI_PERMEABILITY_MIN, have_perm ? "" : " (not checked)",
                        id);
-    if ((st = sg_result_add_text(res, "filter_screen", verdict, note)) != SG_OK)
+    if (sg_result_add_text(res, "filter_screen", verdict, note) != SG_OK)
         return nomem(err);
     return SG_OK;
 }
