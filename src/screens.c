@@ -157,13 +157,10 @@ static enum sg_status add_filter(struct sg_result *res, const struct sg_reduce_o
     note[0] = '\0';
     const bool have = isfinite(d15) && d15 > 0.0 && isfinite(base85) && base85 > 0.0;
     const bool have_perm = have && isfinite(base15) && base15 > 0.0;
+    /* without the base soil's D15 only retention is screened: the same ratio, given a stand-in D15 */
     struct sg_filter_ratios fr = {(double)NAN, (double)NAN, false, false};
-    if (have) {
-        fr.retention = d15 / base85;
-        fr.retention_ok = fr.retention <= SG_TERZAGHI_RETENTION_MAX;
-    }
-    if (have_perm && sg_screens_terzaghi(base15, base85, d15, &fr, NULL) != SG_OK)
-        return sg_error_set(err, SG_EINVAL, 0, 0, "filter ratios: sizes not usable"); /* checked above */
+    if (have)
+        (void)sg_screens_terzaghi(have_perm ? base15 : base85, base85, d15, &fr, NULL);
     if (ratio_row(res, "filter_retention_ratio", have, fr.retention, d15, base85, "D85", id,
                   SG_TERZAGHI_RETENTION_MAX, "at most", "retention",
                   isfinite(d15) ? "the base soil's D85 is not usable" : "D15 of this test is not determined",

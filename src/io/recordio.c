@@ -1397,7 +1397,7 @@ enum sg_status sg_recordio_read_file(const char *path, char **text, size_t *len,
         if (got == 0)
             break;
         n += (size_t)got;
-        if (S_ISREG(sb.st_mode) && n == (size_t)sb.st_size && n < cap)
+        if (S_ISREG(sb.st_mode) && n == (size_t)sb.st_size)
             break; /* all the bytes the file held when opened: no read just to see the end */
     }
     if (n > SG_RECORDIO_MAX_BYTES) {
