@@ -275,6 +275,14 @@ struct worker {
     size_t failed;
     size_t first_failure_draw;
     char first_failure[sizeof ((struct sg_error *)0)->msg];
+    /* candidates for the shared tails, gathered without the lock during a
+     * block: tail t (2 s: lower tail of numeric slot s, 2 s + 1: upper) keeps
+     * the values below thresh[t], a copy of that tail's threshold taken at
+     * the end of the previous block (thresholds only fall, so a value at or
+     * above the copy would be refused by the tail anyway) */
+    double *cand;   /* [2 n_num][SG_MC_BLOCK_DRAWS] */
+    size_t *n_cand; /* [2 n_num] */
+    double *thresh; /* [2 n_num] */
 };
 
 static uint64_t splitmix64(uint64_t x)
@@ -378,9 +386,28 @@ static const struct sg_quantity *match(const struct plan *p, const struct sg_res
     return sg_result_quantity(rs, p->names[i]);
 }
 
-/* Stores one successful draw's values in row and counts its classes. */
-static void extract(const struct plan *p, const struct sg_result *rs, double *row, struct cat_table *cats)
+/* Adds one draw's value of slot s to the block's moments and, for a
+ * numeric slot, to the tail candidates; a value that is not finite (not
+ * determined in the draw) is not counted. */
+static inline void take(const struct plan *p, struct worker *w, struct moments *bs, size_t s, double x)
 {
+    if (!isfinite(x))
+        return;
+    moments_add(&bs[s], x - p->shift[s]);
+    if (s >= p->n_num)
+        return;
+    const size_t tl = 2 * s, th = tl + 1;
+    if (x < w->thresh[tl])
+        w->cand[tl * SG_MC_BLOCK_DRAWS + w->n_cand[tl]++] = x;
+    if (-x < w->thresh[th])
+        w->cand[th * SG_MC_BLOCK_DRAWS + w->n_cand[th]++] = -x;
+}
+
+/* Takes one successful draw's values into the block's sums and the tail
+ * candidates, and counts its classes. */
+static void extract(const struct plan *p, const struct sg_result *rs, struct worker *w, struct moments *bs)
+{
+    struct cat_table *cats = w->cats;
     for (size_t i = 0; i < p->n_quant; i++) {
         if (p->kind[i] == Q_SKIP)
             continue;
@@ -388,13 +415,15 @@ static void extract(const struct plan *p, const struct sg_result *rs, double *ro
         const bool det = q != NULL && q->determined;
         switch (p->kind[i]) {
         case Q_NUMERIC:
-            row[p->slot[i]] = (det && !q->is_text && isfinite(q->value)) ? q->value : NO_VALUE;
+            if (det && !q->is_text)
+                take(p, w, bs, p->slot[i], q->value);
             break;
         case Q_CATEGORICAL:
             cat_add(&cats[p->cat[i]], det ? q->text : "", 1);
             break;
         case Q_UNDET:
-            row[p->slot[i]] = !det ? NO_VALUE : q->is_text ? 0.0 : q->value;
+            if (det)
+                take(p, w, bs, p->slot[i], q->is_text ? 0.0 : q->value);
             if (det && q->is_text)
                 cat_add(&cats[p->cat[i]], q->text, 1);
             break;
@@ -402,11 +431,11 @@ static void extract(const struct plan *p, const struct sg_result *rs, double *ro
             break;
         }
     }
-    double *pts = row + p->pts0;
-    const bool same = rs->n_points == p->n_pts;
+    if (rs->n_points != p->n_pts)
+        return;
     for (size_t i = 0; i < p->n_pts; i++) {
-        pts[2 * i] = same ? rs->points[i].percent_finer : NO_VALUE;
-        pts[2 * i + 1] = same ? rs->points[i].diameter_mm : NO_VALUE;
+        take(p, w, bs, p->pts0 + 2 * i, rs->points[i].percent_finer);
+        take(p, w, bs, p->pts0 + 2 * i + 1, rs->points[i].diameter_mm);
     }
 }
 
@@ -419,12 +448,13 @@ static void *work(void *arg)
     struct sg_result rs;
     sg_result_init(&rs);
     gsl_rng *g = gsl_rng_alloc(gsl_rng_mt19937);
-    double *vals = malloc((size_t)SG_MC_BLOCK_DRAWS * (p->n_slots ? p->n_slots : 1) * sizeof *vals);
     const bool copied = sg_record_copy(&r, p->rec) == SG_OK;
-    if (g == NULL || vals == NULL || !copied) {
+    if (g == NULL || !copied) {
         w->status = sg_error_set(&w->err, SG_ENOMEM, 0, 0, "out of memory for a Monte Carlo thread");
         goto cleanup;
     }
+    for (size_t t = 0; t < 2 * p->n_num; t++)
+        w->thresh[t] = (double)INFINITY;
     for (;;) {
         const size_t blk = atomic_fetch_add(&p->next_block, 1);
         if (blk >= p->n_blocks)
@@ -432,58 +462,41 @@ static void *work(void *arg)
         gsl_rng_set(g, block_seed(p->seed, blk));
         const size_t first = blk * SG_MC_BLOCK_DRAWS;
         const size_t nd = p->m - first < SG_MC_BLOCK_DRAWS ? p->m - first : SG_MC_BLOCK_DRAWS;
+        /* each slot sums its block's draws in draw order (moments of a
+         * block do not depend on the thread that made it) */
+        struct moments *bs = p->block_stats + blk * p->n_slots;
+        for (size_t s = 0; s < p->n_slots; s++)
+            bs[s] = (struct moments){0.0, 0.0, 0.0};
+        for (size_t t = 0; t < 2 * p->n_num; t++)
+            w->n_cand[t] = 0;
         for (size_t j = 0; j < nd; j++) {
-            double *row = vals + j * p->n_slots;
             perturb(p, &r, &k, g);
             struct sg_error e;
             if (sg_reduce(&r, &k, &p->opt, &rs, &e) == SG_OK) {
-                extract(p, &rs, row, w->cats);
+                extract(p, &rs, w, bs);
                 continue;
             }
-            for (size_t s = 0; s < p->n_slots; s++)
-                row[s] = NO_VALUE;
             if (w->failed++ == 0 || first + j < w->first_failure_draw) {
                 w->first_failure_draw = first + j;
                 (void)snprintf(w->first_failure, sizeof w->first_failure, "%s", e.msg);
             }
         }
-        /* row by row (the block's values in memory order, not a column
-         * at a stride of n_slots); each slot still sums its draws in order */
-        struct moments *bs = p->block_stats + blk * p->n_slots;
-        for (size_t s = 0; s < p->n_slots; s++)
-            bs[s] = (struct moments){0.0, 0.0, 0.0};
-        /* 16 draws at a time, slot by slot: the sums stay in registers for
-         * 16 additions (the draws still in order, so the same sums) and the
-         * 16 rows stay in the first-level cache */
-        enum { CHUNK = 16 };
-        for (size_t j0 = 0; j0 < nd; j0 += CHUNK) {
-            const size_t j1 = nd - j0 < CHUNK ? nd : j0 + CHUNK;
-            for (size_t s = 0; s < p->n_slots; s++) {
-                struct moments m = bs[s];
-                const double shift = p->shift[s];
-                for (size_t j = j0; j < j1; j++) {
-                    const double x = vals[j * p->n_slots + s];
-                    if (isfinite(x))
-                        moments_add(&m, x - shift);
-                }
-                bs[s] = m;
-            }
-        }
         pthread_mutex_lock(&p->lock);
-        for (size_t j = 0; j < nd; j++) {
-            const double *row = vals + j * p->n_slots;
-            for (size_t s = 0; s < p->n_num; s++)
-                if (isfinite(row[s])) {
-                    tail_add(&p->lo[s], row[s]);
-                    tail_add(&p->hi[s], -row[s]);
-                }
+        for (size_t s = 0; s < p->n_num; s++) {
+            const size_t tl = 2 * s, th = tl + 1;
+            const double *cl = w->cand + tl * SG_MC_BLOCK_DRAWS, *ch = w->cand + th * SG_MC_BLOCK_DRAWS;
+            for (size_t c = 0; c < w->n_cand[tl]; c++)
+                tail_add(&p->lo[s], cl[c]);
+            for (size_t c = 0; c < w->n_cand[th]; c++)
+                tail_add(&p->hi[s], ch[c]);
+            w->thresh[tl] = p->lo[s].thresh;
+            w->thresh[th] = p->hi[s].thresh;
         }
         pthread_mutex_unlock(&p->lock);
     }
 cleanup:
     if (copied)
         sg_record_release(&r);
-    free(vals);
     gsl_rng_free(g);
     sg_result_release(&rs);
     return NULL;
@@ -885,7 +898,11 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
     for (unsigned t = 0; t < nw; t++) {
         ws[t].p = &p;
         ws[t].cats = calloc(p.n_cat ? p.n_cat : 1, sizeof *ws[t].cats);
-        if (ws[t].cats == NULL)
+        const size_t n_tails = p.n_num > 0 ? 2 * p.n_num : 1;
+        ws[t].cand = malloc(n_tails * SG_MC_BLOCK_DRAWS * sizeof *ws[t].cand);
+        ws[t].n_cand = calloc(n_tails, sizeof *ws[t].n_cand);
+        ws[t].thresh = malloc(n_tails * sizeof *ws[t].thresh);
+        if (ws[t].cats == NULL || ws[t].cand == NULL || ws[t].n_cand == NULL || ws[t].thresh == NULL)
             goto nomem;
     }
     if (pthread_mutex_init(&p.lock, NULL) != 0) {
@@ -936,8 +953,12 @@ cleanup:
     if (lock_ready)
         pthread_mutex_destroy(&p.lock);
     if (ws != NULL)
-        for (unsigned t = 0; t < nw; t++)
+        for (unsigned t = 0; t < nw; t++) {
             free(ws[t].cats);
+            free(ws[t].cand);
+            free(ws[t].n_cand);
+            free(ws[t].thresh);
+        }
     free(ws);
     plan_release(&p);
     return st;

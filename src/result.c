@@ -95,8 +95,7 @@ enum sg_status sg_result_add_flag(struct sg_result *r, const char *name, enum sg
     return SG_OK;
 }
 
-/* Makes room for one more row (the rare path). */
-static enum sg_status grow_quantities(struct sg_result *r)
+enum sg_status sg_result_reserve_quantity(struct sg_result *r)
 {
     void *items = r->quantities;
     enum sg_status st = grow(&items, r->n_quantities, &r->cap_quantities, sizeof *r->quantities);
@@ -129,25 +128,13 @@ static inline void fill_row(struct sg_quantity *q, const char *unit, const char 
 static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, const char *unit,
                                         const char *note)
 {
-    if (r->n_quantities == r->cap_quantities && grow_quantities(r) != SG_OK)
+    if (r->n_quantities == r->cap_quantities && sg_result_reserve_quantity(r) != SG_OK)
         return NULL;
     struct sg_quantity *q = &r->quantities[r->n_quantities++];
     /* the name zero-padded, so that equal names are equal arrays (a cheap
      * first test in mc.c) */
     memset(q->name, 0, sizeof q->name);
     copy_text(q->name, sizeof q->name, name);
-    fill_row(q, unit, note);
-    return q;
-}
-
-struct sg_quantity *sg_result_new_quantity(struct sg_result *r, const char name[SG_QNAME_MAX], const char *unit,
-                                           const char *note)
-{
-    if (r->n_quantities == r->cap_quantities && grow_quantities(r) != SG_OK)
-        return NULL;
-    struct sg_quantity *q = &r->quantities[r->n_quantities++];
-    memcpy(q->name, name, SG_QNAME_MAX); /* one block: no strlen */
-    q->name[SG_QNAME_MAX - 1] = '\0';
     fill_row(q, unit, note);
     return q;
 }
