@@ -103,40 +103,15 @@ enum sg_status sg_result_reserve_quantity(struct sg_result *r)
     return st;
 }
 
-/* Every field but the name, the strings only up to their terminator (a
- * row is written about 90 times per reduction, and as often per Monte
- * Carlo draw: inline, with a byte loop for the short unit). */
-static inline void fill_row(struct sg_quantity *q, const char *unit, const char *note)
-{
-    size_t i = 0;
-    if (unit != NULL)
-        for (; i + 1 < sizeof q->unit && unit[i] != '\0'; i++)
-            q->unit[i] = unit[i];
-    q->unit[i] = '\0';
-    if (note != NULL && note[0] != '\0')
-        copy_text(q->note, sizeof q->note, note);
-    else
-        q->note[0] = '\0';
-    q->text[0] = '\0';
-    q->determined = false;
-    q->is_text = false;
-    q->has_u = false;
-    q->value = NAN;
-    q->u = q->low95 = q->high95 = NAN;
-}
-
+/* A row named by a string: the name zero-padded first, so that equal
+ * names are equal arrays (a cheap first test in mc.c). */
 static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, const char *unit,
                                         const char *note)
 {
-    if (r->n_quantities == r->cap_quantities && sg_result_reserve_quantity(r) != SG_OK)
-        return NULL;
-    struct sg_quantity *q = &r->quantities[r->n_quantities++];
-    /* the name zero-padded, so that equal names are equal arrays (a cheap
-     * first test in mc.c) */
-    memset(q->name, 0, sizeof q->name);
-    copy_text(q->name, sizeof q->name, name);
-    fill_row(q, unit, note);
-    return q;
+    char padded[SG_QNAME_MAX];
+    memset(padded, 0, sizeof padded);
+    copy_text(padded, sizeof padded, name);
+    return sg_result_new_quantity(r, padded, unit, note);
 }
 
 enum sg_status sg_result_add_value(struct sg_result *r, const char *name, const char *unit, double value,
