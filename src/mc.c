@@ -254,6 +254,15 @@ struct plan {
     size_t *slot;       /* value slot (Q_NUMERIC, Q_UNDET) */
     size_t *cat;        /* class table (Q_CATEGORICAL, Q_UNDET) */
     size_t *draw_index; /* where a draw's result is expected to hold quantity i */
+    /* the quantities a draw is read for (kind not Q_SKIP), in order, each
+     * with what extract needs in one place */
+    struct follow {
+        size_t q;          /* nominal index */
+        size_t j;          /* = draw_index[q] */
+        enum qkind kind;
+        size_t slot, cat;
+    } *follow;
+    size_t n_follow;
     /* slots: n_num numeric (with tails), n_und undetermined, then percent
      * finer and diameter of each point */
     size_t n_num, n_und, n_cat, n_pts, n_slots, pts0;
@@ -375,15 +384,14 @@ static void perturb(const struct plan *p, struct sg_record *r, struct sg_constan
     }
 }
 
-/* The draw's quantity that corresponds to nominal quantity i. */
-static const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs, size_t i)
+/* The draw's quantity that corresponds to followed quantity f. */
+static const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs, const struct follow *f)
 {
-    const size_t j = p->draw_index[i];
     /* names as whole arrays first (the result zero-pads them, as calloc did
      * p->names): equal arrays are equal names; else by name */
-    if (j < rs->n_quantities && memcmp(rs->quantities[j].name, p->names[i], sizeof p->names[i]) == 0)
-        return &rs->quantities[j];
-    return sg_result_quantity(rs, p->names[i]);
+    if (f->j < rs->n_quantities && memcmp(rs->quantities[f->j].name, p->names[f->q], sizeof p->names[f->q]) == 0)
+        return &rs->quantities[f->j];
+    return sg_result_quantity(rs, p->names[f->q]);
 }
 
 /* Adds one draw's value of slot s to the block's moments and, for a
@@ -408,24 +416,22 @@ static inline void take(const struct plan *p, struct worker *w, struct moments *
 static void extract(const struct plan *p, const struct sg_result *rs, struct worker *w, struct moments *bs)
 {
     struct cat_table *cats = w->cats;
-    for (size_t i = 0; i < p->n_quant; i++) {
-        if (p->kind[i] == Q_SKIP)
-            continue;
-        const struct sg_quantity *q = match(p, rs, i);
+    for (const struct follow *f = p->follow, *end = f + p->n_follow; f < end; f++) {
+        const struct sg_quantity *q = match(p, rs, f);
         const bool det = q != NULL && q->determined;
-        switch (p->kind[i]) {
+        switch (f->kind) {
         case Q_NUMERIC:
             if (det && !q->is_text)
-                take(p, w, bs, p->slot[i], q->value);
+                take(p, w, bs, f->slot, q->value);
             break;
         case Q_CATEGORICAL:
-            cat_add(&cats[p->cat[i]], det ? q->text : "", 1);
+            cat_add(&cats[f->cat], det ? q->text : "", 1);
             break;
         case Q_UNDET:
             if (det)
-                take(p, w, bs, p->slot[i], q->is_text ? 0.0 : q->value);
+                take(p, w, bs, f->slot, q->is_text ? 0.0 : q->value);
             if (det && q->is_text)
-                cat_add(&cats[p->cat[i]], q->text, 1);
+                cat_add(&cats[f->cat], q->text, 1);
             break;
         case Q_SKIP:
             break;
@@ -748,6 +754,7 @@ static void plan_release(struct plan *p)
     free(p->cat);
     free(p->shift);
     free(p->draw_index);
+    free(p->follow);
     free(p->block_stats);
     if (p->lo != NULL)
         for (size_t s = 0; s < p->n_num; s++)
@@ -860,11 +867,16 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
     p.shift = calloc(p.n_slots ? p.n_slots : 1, sizeof *p.shift);
     if (p.shift == NULL)
         goto nomem;
+    p.follow = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.follow);
+    if (p.follow == NULL)
+        goto nomem;
     for (size_t i = 0, u = p.n_num; i < p.n_quant; i++) {
         if (p.kind[i] == Q_UNDET)
             p.slot[i] = u++; /* counted only: shift 0 */
         else if (p.kind[i] == Q_NUMERIC)
             p.shift[p.slot[i]] = res->quantities[i].value;
+        if (p.kind[i] != Q_SKIP)
+            p.follow[p.n_follow++] = (struct follow){i, p.draw_index[i], p.kind[i], p.slot[i], p.cat[i]};
     }
     for (size_t i = 0; i < p.n_pts; i++) {
         const double pf = res->points[i].percent_finer, d = res->points[i].diameter_mm;
