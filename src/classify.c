@@ -258,6 +258,7 @@ struct ctx {
     struct sg_error *err;
     const char *interp_word; /* "log-linear" or "monotone (Steffen)" */
     bool quiet;              /* opt->values_only or skip_notes: empty notes, nothing formatted */
+    const char *limits_given; /* "" or, when the record gives the Atterberg limits, where the group is */
     /* the curve at each bound: percent finer, status, and (not quiet) why not */
     double p[N_BOUNDS];
     enum sg_status pst[N_BOUNDS];
@@ -666,8 +667,8 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
             return st;
         return add_undet(x, QN("uscs_group"), "",
                          "fine-grained soil (fines %.1f %% >= 50 %%): ML, CL, MH, CH, OL or OH needs the "
-                         "Atterberg limits (and organic content)",
-                         fines);
+                         "Atterberg limits (and organic content)%s",
+                         fines, x->limits_given);
     }
     if (fines > USCS_DUAL_MAX_PCT) {
         if (!x->quiet)
@@ -677,8 +678,8 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      basis);
         if ((st = add_text(x, "uscs_grading", "not applicable, fines over 12 %", note)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "%s with fines over 12 %% (%s): %s needs the Atterberg limits",
-                         kind, basis, is_gravel ? "GM, GC or GC-GM" : "SM, SC or SC-SM");
+        return add_undet(x, QN("uscs_group"), "", "%s with fines over 12 %% (%s): %s needs the Atterberg limits%s",
+                         kind, basis, is_gravel ? "GM, GC or GC-GM" : "SM, SC or SC-SM", x->limits_given);
     }
     if (!isfinite(cu) || !isfinite(cc)) {
         if ((st = add_undet(x, QN("uscs_grading"), "",
@@ -700,8 +701,8 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     }
     return add_undet(x, QN("uscs_group"), "",
                      "dual symbol %s-%cM or %s-%cC (fines %.1f %%, 5-12 %%): the second part needs the "
-                     "Atterberg limits of the fines",
-                     sym, is_gravel ? 'G' : 'S', sym, is_gravel ? 'G' : 'S', fines);
+                     "Atterberg limits of the fines%s",
+                     sym, is_gravel ? 'G' : 'S', sym, is_gravel ? 'G' : 'S', fines, x->limits_given);
 }
 
 static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
@@ -874,7 +875,6 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
                                      const struct sg_reduce_options *opt, struct sg_result *res,
                                      struct sg_error *err)
 {
-    (void)rec;
     if (curve == NULL || res == NULL)
         return sg_error_set(err, SG_EINVAL, 0, 0, "no curve or no result to summarise");
     /* fields one by one: the message buffers stay untouched unless used */
@@ -884,6 +884,11 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     x.err = err;
     x.interp_word = curve->impl != NULL ? "monotone (Steffen)" : "log-linear";
     x.quiet = opt != NULL && (opt->values_only || opt->skip_notes);
+    /* uscs_group is the grading's part of ASTM D2487; with the limits the
+     * whole group symbol is uscs_symbol (plasticity.h) */
+    x.limits_given = rec != NULL && rec->has_liquid_limit && rec->has_plastic_limit
+                         ? "; the record gives them: the group symbol with them is uscs_symbol"
+                         : "";
     enum sg_status st;
 
     static const struct {

@@ -12,6 +12,7 @@
 
 #include "sedgrade/classify.h"
 #include "sedgrade/curve.h"
+#include "sedgrade/record.h"
 #include "sedgrade/reduce.h"
 #include "sedgrade/result.h"
 
@@ -583,6 +584,34 @@ Test(summary, uscs_dual_and_silty_and_fine_grained)
     undet(&res, "uscs_grading", "Cu and Cc");
     undet(&res, "uscs_group", "Cu and Cc");
     sg_result_release(&res);
+}
+
+Test(summary, uscs_group_points_to_uscs_symbol_when_limits_are_given)
+{
+    /* uscs_group is only the grading's part of ASTM D2487; when the record
+     * gives the liquid and plastic limits the whole group symbol is the
+     * plasticity check's uscs_symbol, and the note says so (and does not
+     * when they are missing) */
+    const struct sg_curve_point fine[] = {{0.002, 20.0, 2}, {0.075, 60.0, 0}, {2.0, 100.0, 0}};
+    struct sg_record rec;
+    sg_record_init(&rec);
+    struct sg_result res;
+    struct sg_error e;
+    sg_error_clear(&e);
+    for (int given = 0; given < 2; given++) {
+        rec.has_liquid_limit = rec.has_plastic_limit = given;
+        rec.liquid_limit_pct = 42.0;
+        rec.plastic_limit_pct = 21.0;
+        sg_result_init(&res);
+        cr_assert_eq(sg_curve_build(&res.curve, fine, 3, SG_INTERP_LOGLINEAR, &e), SG_OK, "%s", e.msg);
+        cr_assert_eq(sg_classify_summarise(&res.curve, &rec, NULL, &res, &e), SG_OK, "%s", e.msg);
+        undet(&res, "uscs_group", "ML, CL, MH, CH");
+        const bool points = strstr(qty(&res, "uscs_group")->note, "uscs_symbol") != NULL;
+        cr_assert_eq(points, given == 1, "limits %s: note '%s'", given ? "given" : "missing",
+                     qty(&res, "uscs_group")->note);
+        sg_result_release(&res);
+    }
+    sg_record_release(&rec);
 }
 
 Test(summary, uscs_on_the_fraction_finer_than_75_mm)
