@@ -673,7 +673,11 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
                 note_append(q, buf);
             }
         } else if (p->kind[i] == Q_CATEGORICAL) {
-            class_note(&cats[p->cat[i]], idx, ok_draws, "Monte Carlo class probabilities:", buf, sizeof buf);
+            char lead[80] = "Monte Carlo class probabilities:";
+            if (failed > 0)
+                (void)snprintf(lead, sizeof lead, "Monte Carlo class probabilities (of %zu accepted draws):",
+                               ok_draws);
+            class_note(&cats[p->cat[i]], idx, ok_draws, lead, buf, sizeof buf);
             note_append(q, buf);
         }
     }
@@ -711,11 +715,23 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
         st = sg_result_add_value(res, "mc_draws", "", (double)p->m, note);
     }
     if (st == SG_OK && failed > 0) {
+        /* the refused draws are not a random subset (they are the ones the
+         * inputs' tails pushed outside the reduction's validity), so the
+         * statistics of the others are biased: worse with the share */
         const double share = 100.0 * (double)failed / (double)p->m;
-        st = sg_result_add_flag(res, "mc_refused_draws", share > 1.0 ? SG_SEVERITY_WARNING : SG_SEVERITY_INFO, 0,
-                                "the reduction refused %.2g %% of the Monte Carlo draws (first: %s); the "
-                                "uncertainties come from the other draws",
-                                share, first_failure);
+        const enum sg_severity sev = share > SG_MC_REFUSED_FAILURE_PCT   ? SG_SEVERITY_FAILURE
+                                     : share > SG_MC_REFUSED_WARNING_PCT ? SG_SEVERITY_WARNING
+                                                                         : SG_SEVERITY_INFO;
+        st = sg_result_add_flag(res, "mc_refused_draws", sev, 0,
+                                "the reduction refused %.3g %% of the Monte Carlo draws (%zu of %zu; first: %s); the "
+                                "uncertainties come from the %zu others%s",
+                                share, failed, p->m, first_failure, ok_draws,
+                                sev == SG_SEVERITY_FAILURE ? " and are not reliable (reduce the input uncertainties "
+                                                             "u_* or extend the calibrated ranges)"
+                                                           : "");
+        /* qc_status and qc_flags were set before the draws: count this flag too */
+        if (st == SG_OK && sg_result_quantity(res, "qc_status") != NULL)
+            st = sg_qc_summarise(&p->opt.qc, res, err);
     }
     if (st == SG_OK && detail != NULL) {
         sg_mc_detail_release(detail);

@@ -590,10 +590,13 @@ static enum sg_status rule_mass_balance(const struct sg_record *rec, const struc
                 lim->mass_balance_max_pct);
 }
 
-/* qc_status and qc_flags, from every flag of the run (the register's and
- * sg_reduce()'s included). */
-static enum sg_status summarise(const struct sg_qc_limits *lim, struct sg_result *res, struct sg_error *err)
+enum sg_status sg_qc_summarise(const struct sg_qc_limits *lim, struct sg_result *res, struct sg_error *err)
 {
+    struct sg_qc_limits def;
+    if (lim == NULL) {
+        def = sg_qc_limits_default();
+        lim = &def;
+    }
     char names[SG_QTEXT_MAX];
     size_t used = 0;
     bool truncated = false;
@@ -656,6 +659,6 @@ enum sg_status sg_qc_evaluate(const struct sg_record *rec, const struct sg_const
     if (st == SG_OK)
         st = rule_mass_balance(rec, lim, res, err);
     if (st == SG_OK)
-        st = summarise(lim, res, err);
+        st = sg_qc_summarise(lim, res, err);
     return st;
 }

@@ -529,11 +529,47 @@ Test(run, refused_draws_are_counted)
     cr_assert(d.failed > 300 && d.failed < 800, "%zu refused", d.failed);
     cr_assert(strstr(d.first_failure, "40") != NULL, "%s", d.first_failure);
     cr_assert(strstr(qty(&res, "mc_draws")->note, "refused") != NULL);
+    /* a quarter of the draws refused: the others are a biased sample, so
+     * the flag is a failure (over SG_MC_REFUSED_FAILURE_PCT, common
+     * practice) and qc_status, set before the draws, now says so */
     bool flagged = false;
     for (size_t i = 0; i < res.n_flags; i++)
-        flagged |= strcmp(res.flags[i].name, "mc_refused_draws") == 0 && res.flags[i].severity == SG_SEVERITY_WARNING;
+        flagged |= strcmp(res.flags[i].name, "mc_refused_draws") == 0 && res.flags[i].severity == SG_SEVERITY_FAILURE;
     cr_assert(flagged);
+    cr_assert_str_eq(qty(&res, "qc_status")->text, "failed");
+    cr_assert(strstr(qty(&res, "qc_flags")->text, "mc_refused_draws") != NULL, "%s", qty(&res, "qc_flags")->text);
     cr_assert(isfinite(res.points[0].percent_finer_u));
+    sg_mc_detail_release(&d);
+    sg_result_release(&res);
+    sg_record_release(&rec);
+}
+
+Test(run, few_refused_draws_are_a_warning)
+{
+    /* 39.0 C with u 0.5 C: about 2.3 % of the draws exceed 40 C (normal
+     * tail beyond 2 standard deviations): between the warning and failure
+     * limits of mc.h */
+    struct sg_record rec;
+    single_point(&rec);
+    rec.readings[0].temp_c = 39.0;
+    rec.u.temp_c = 0.5;
+    struct sg_result res;
+    reduce(&rec, &res);
+    struct sg_mc_detail d;
+    sg_mc_detail_init(&d);
+    mc(&rec, &res, &d, 4000, 11, 2);
+    cr_assert(d.failed > 40 && d.failed < 160, "%zu refused", d.failed);
+    enum sg_severity sev = SG_SEVERITY_INFO;
+    bool found = false;
+    for (size_t i = 0; i < res.n_flags; i++)
+        if (strcmp(res.flags[i].name, "mc_refused_draws") == 0) {
+            found = true;
+            sev = res.flags[i].severity;
+            cr_assert(strstr(res.flags[i].message, "of 4000") != NULL, "%s", res.flags[i].message);
+        }
+    cr_assert(found);
+    cr_assert_eq(sev, SG_SEVERITY_WARNING);
+    cr_assert_str_eq(qty(&res, "qc_status")->text, "warning");
     sg_mc_detail_release(&d);
     sg_result_release(&res);
     sg_record_release(&rec);

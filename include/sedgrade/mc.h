@@ -80,6 +80,15 @@
  * analytical balance, weighing by difference plus drying). */
 #define SG_MC_U_SOLIDS_G 0.0005
 
+/* Share of refused draws (percent of M) above which the run gets an
+ * "mc_refused_draws" warning, and above which that flag is a failure: the
+ * refused draws are those the inputs' tails pushed outside the reduction's
+ * validity (e.g. a temperature outside the calibrated blank range), so the
+ * other draws' statistics are biased, the more so the larger the share
+ * (common practice; below the first limit the flag is for information). */
+#define SG_MC_REFUSED_WARNING_PCT 1.0
+#define SG_MC_REFUSED_FAILURE_PCT 10.0
+
 /* Coverage probability of the reported intervals (SPEC low95/high95). */
 #define SG_MC_COVERAGE 0.95
 /* Most draws accepted in one run. Memory: about 0.6 bytes per draw per

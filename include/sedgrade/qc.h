@@ -139,4 +139,10 @@ struct sg_constants;
 enum sg_status sg_qc_evaluate(const struct sg_record *rec, const struct sg_constants *k,
                               const struct sg_qc_limits *lim, struct sg_result *res, struct sg_error *err);
 
+/* Sets (adds or overwrites) qc_status and qc_flags from every flag res holds
+ * now: the last step of sg_qc_evaluate, again after a later step added flags
+ * (sg_mc_run's mc_refused_draws). lim may be NULL (defaults; only its
+ * strict setting is used). SG_OK or SG_ENOMEM. */
+enum sg_status sg_qc_summarise(const struct sg_qc_limits *lim, struct sg_result *res, struct sg_error *err);
+
 #endif
