@@ -1841,6 +1841,21 @@ static void join_used(const struct resolver *rv, struct sg_constants *k)
     out[at] = '\0';
 }
 
+/* Whether a constant the reduction applies comes from the record itself
+ * after the register was consulted: the depth line, meniscus or composite
+ * correction of a hydrometer test that names no hydrometer, a composite
+ * correction that no register blank line replaced, or the pipette volume of
+ * a pipette test that names no pipette. */
+static bool uses_inline(const struct sg_record *rec, const struct sg_constants *k)
+{
+    if (rec->method == SG_METHOD_HYDROMETER)
+        return (!rec->hydrometer[0] && (rec->has_depth_line || rec->has_meniscus || rec->has_composite)) ||
+               (rec->has_composite && k->has_blank_const);
+    if (rec->method == SG_METHOD_PIPETTE)
+        return !rec->pipette_id[0] && rec->has_pipette_volume;
+    return false;
+}
+
 enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
                                               const char *override_id, const char *override_entry,
                                               struct sg_constants *k, struct sg_error *err)
@@ -1897,6 +1912,10 @@ enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, co
     }
     if (st != SG_OK)
         return st;
+    /* constants the record still carries itself sit beside the register's
+     * entries: the SPEC's "inline" is named too */
+    if (rv.n_used > 0 && rv.n_used < sizeof rv.used / sizeof rv.used[0] && uses_inline(rec, k))
+        memcpy(rv.used[rv.n_used++], "inline", sizeof "inline");
     if (rv.n_used > 0)
         join_used(&rv, k);
     return SG_OK;
