@@ -98,6 +98,46 @@ static enum sg_status add_sieve_points(const struct sg_sieve_row *rows, size_t n
     return st;
 }
 
+/* Apertures that agree to this relative difference are the same sieve
+ * (nominal apertures are written to three significant digits: common
+ * practice). */
+#define SAME_APERTURE_REL 1e-3
+
+/* The percent passing the split sieve is measured only when that sieve is
+ * one of the sieve rows (METHODS.md 5.5: the designated separating sieve
+ * belongs to the coarse set); otherwise sg_sieve_percent_passing gives the
+ * next coarser sieve's value (or 100 % with none at or above the split),
+ * which the run says with a "split_sieve" warning instead of silently. */
+static enum sg_status check_split_sieve(const struct sg_record *rec, struct sg_result *res, struct sg_error *err)
+{
+    const double split = rec->split_aperture_mm;
+    double coarser = INFINITY;
+    for (size_t i = 0; i < rec->n_sieve; i++) {
+        const double a = rec->sieve[i].aperture_mm;
+        if (a <= SG_SIEVE_PAN_MM)
+            continue;
+        if (fabs(a - split) <= SAME_APERTURE_REL * split)
+            return SG_OK;
+        if (a > split && a < coarser)
+            coarser = a;
+    }
+    const unsigned line = rec->pos_split_aperture.line;
+    enum sg_status st;
+    if (isfinite(coarser))
+        st = sg_result_add_flag(res, "split_sieve", SG_SEVERITY_WARNING, line,
+                                "the split aperture %g mm is not one of the sieve rows: the percent passing it is "
+                                "taken as that of the next coarser sieve, %g mm (add the %g mm sieve's retained "
+                                "mass, or correct split_aperture_mm)",
+                                split, coarser, split);
+    else
+        st = sg_result_add_flag(res, "split_sieve", SG_SEVERITY_WARNING, line,
+                                "no sieve row at or above the split aperture %g mm: 100 %% of the sample is taken "
+                                "to pass it (add the coarser sieves' retained masses, or correct "
+                                "split_aperture_mm)",
+                                split);
+    return st == SG_OK ? SG_OK : sg_error_set(err, st, 0, 0, "out of memory");
+}
+
 /* Blank (composite) reading for a hydrometer row: the row's own, else the
  * register's line in temperature (no extrapolation), else the record's constant,
  * else 0 with *missing set. */
@@ -316,6 +356,8 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
         return st;
 
     double pp_split = 100.0;
+    if (rec->n_sieve > 0 && !opt->values_only && (st = check_split_sieve(rec, res, err)) != SG_OK)
+        return st;
     if (rec->n_sieve > 0) {
         pp_split = sg_sieve_percent_passing(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g,
                                             rec->split_aperture_mm);

@@ -92,6 +92,48 @@ Test(reduce, v2b_scaled_to_whole_sample)
     sg_record_release(&rec);
 }
 
+static const struct sg_flag *find_flag(const struct sg_result *res, const char *name)
+{
+    for (size_t i = 0; i < res->n_flags; i++)
+        if (strcmp(res->flags[i].name, name) == 0)
+            return &res->flags[i];
+    return NULL;
+}
+
+Test(reduce, split_sieve_not_among_the_sieves_is_flagged)
+{
+    /* METHODS.md 5.5: the separating sieve belongs to the coarse set, so its
+     * percent passing is measured. V2-B's sieves are 20, 6.3 and 2 mm. */
+    struct sg_record rec;
+    struct sg_result res;
+    struct sg_error err;
+    v2b_record(&rec);
+    sg_result_init(&res);
+    /* split on the 2 mm sieve (2.000 as written to three digits): no flag */
+    rec.split_aperture_mm = 2.000;
+    cr_assert_eq(sg_reduce(&rec, NULL, NULL, &res, &err), SG_OK, "%s", err.msg);
+    cr_assert_null(find_flag(&res, "split_sieve"));
+    /* split at 4 mm, no such sieve: the 6.3 mm sieve's 92 % is used, and said */
+    rec.split_aperture_mm = 4.0;
+    cr_assert_eq(sg_reduce(&rec, NULL, NULL, &res, &err), SG_OK, "%s", err.msg);
+    cr_assert(fabs(res.pp_split - 92.0) < 1e-12);
+    const struct sg_flag *f = find_flag(&res, "split_sieve");
+    cr_assert_not_null(f);
+    cr_assert_eq(f->severity, SG_SEVERITY_WARNING);
+    cr_assert_eq(f->line, 5u);
+    cr_assert(strstr(f->message, "6.3 mm") != NULL, "%s", f->message);
+    cr_assert_str_eq(sg_result_quantity(&res, "qc_status")->text, "warning");
+    /* split above every sieve: 100 % assumed, and said */
+    rec.split_aperture_mm = 37.5;
+    cr_assert_eq(sg_reduce(&rec, NULL, NULL, &res, &err), SG_OK, "%s", err.msg);
+    cr_assert(fabs(res.pp_split - 100.0) < 1e-12);
+    f = find_flag(&res, "split_sieve");
+    cr_assert_not_null(f);
+    cr_assert(strstr(f->message, "100 %") != NULL, "%s", f->message);
+    sg_result_release(&res);
+    sg_record_release(&rec);
+}
+
 Test(reduce, row_blank_overrides_record_blank)
 {
     struct sg_record rec;
