@@ -313,11 +313,22 @@ static enum sg_status rule_concentration(const struct sg_constants *k, const str
     return SG_OK;
 }
 
+/* Whether the run's sedimentation points are pipette samples (advice in the
+ * messages names what a pipette test weighs, not a hydrometer's blank). */
+static bool has_pipette(const struct sg_result *res)
+{
+    for (size_t i = 0; i < res->n_points; i++)
+        if (res->points[i].source == SG_SOURCE_PIPETTE)
+            return true;
+    return false;
+}
+
 /* Sedimentation readings in time order: percent must fall, temperature stay
  * in range and steady, readings on the scale (METHODS.md 3.7 #2, #3). */
 static enum sg_status rule_readings(const struct sg_constants *k, const struct sg_qc_limits *lim,
                                     struct sg_result *res, struct sg_error *err)
 {
+    const bool pipette = has_pipette(res);
     struct tally fall, range, drift, scale;
     tally_init(&fall);
     tally_init(&range);
@@ -360,9 +371,11 @@ static enum sg_status rule_readings(const struct sg_constants *k, const struct s
     if (fall.count > 0) {
         tally_where(&fall, "reading", where, sizeof where);
         st = flag(res, "not_falling", fall.worst_line, err,
-                  "percent of specimen %.4g %% is %.3g points above an earlier reading's, but it must fall "
-                  "with time (noise tolerance %g); %s (check those readings, the blank and the temperature)",
-                  fall.worst, fall.worst_aux, lim->monotone_tolerance_pct, where);
+                  "percent of specimen %.4g %% is %.3g points above an earlier %s, but it must fall "
+                  "with time (noise tolerance %g); %s (%s)",
+                  fall.worst, fall.worst_aux, pipette ? "sample's" : "reading's", lim->monotone_tolerance_pct, where,
+                  pipette ? "check those samples' solids weighings, the sampling depth and the temperature"
+                          : "check those readings, the blank and the temperature");
     }
     if (st == SG_OK && range.count > 0) {
         tally_where(&range, "reading", where, sizeof where);
@@ -419,15 +432,17 @@ static enum sg_status rule_percent_range(const struct sg_qc_limits *lim, struct 
         tally_where(&over, "point", where, sizeof where);
         st = flag(res, "over_100", over.worst_line, err,
                   "percent finer %.4g %% (of the %s) is above 100 %% by more than %g; %s (check the specimen "
-                  "mass, the particle density and the blank reading)",
-                  over.worst, over.worst_aux > 0.0 ? "specimen" : "sample", lim->percent_tolerance, where);
+                  "mass, %s)",
+                  over.worst, over.worst_aux > 0.0 ? "specimen" : "sample", lim->percent_tolerance, where,
+                  has_pipette(res) ? "the pipette volume and the solids weighings"
+                                   : "the particle density and the blank reading");
     }
     if (st == SG_OK && neg.count > 0) {
         tally_where(&neg, "point", where, sizeof where);
-        st = flag(res, "negative", neg.worst_line, err,
-                  "percent finer %.4g %% is below 0 by more than %g; %s (check the blank (composite) "
-                  "reading)",
-                  neg.worst, lim->percent_tolerance, where);
+        st = flag(res, "negative", neg.worst_line, err, "percent finer %.4g %% is below 0 by more than %g; %s (%s)",
+                  neg.worst, lim->percent_tolerance, where,
+                  has_pipette(res) ? "check the solids weighings and the dispersant mass, which is subtracted"
+                                   : "check the blank (composite) reading");
     }
     return st;
 }

@@ -345,6 +345,36 @@ Test(qc, not_falling_at_and_past_the_tolerance)
     sg_result_release(&r);
 }
 
+Test(qc, pipette_advice_names_what_a_pipette_test_weighs)
+{
+    /* a pipette test has no blank reading: its not_falling and negative
+     * messages point to the solids weighings instead (common practice) */
+    struct sg_result r;
+    struct sg_point a = hyd(14, 2.0, 0.03, 40.0, 20.0), b = hyd(15, 5.0, 0.02, 43.0, 20.0);
+    struct sg_point c = hyd(16, 30.0, 0.005, -3.0, 20.0);
+    a.source = b.source = c.source = SG_SOURCE_PIPETTE;
+    sg_result_init(&r);
+    add(&r, a);
+    add(&r, b);
+    add(&r, c);
+    evaluate(&r);
+    const struct sg_flag *f = find_flag(&r, "not_falling"), *n = find_flag(&r, "negative");
+    cr_assert_not_null(f);
+    cr_assert_not_null(n);
+    cr_assert(strstr(f->message, "solids") != NULL && strstr(f->message, "blank") == NULL, "%s", f->message);
+    cr_assert(strstr(n->message, "solids") != NULL && strstr(n->message, "blank") == NULL, "%s", n->message);
+    sg_result_release(&r);
+    /* the same points from a hydrometer keep the blank advice */
+    a.source = b.source = c.source = SG_SOURCE_HYDROMETER;
+    sg_result_init(&r);
+    add(&r, a);
+    add(&r, b);
+    add(&r, c);
+    evaluate(&r);
+    cr_assert(strstr(find_flag(&r, "negative")->message, "blank") != NULL);
+    sg_result_release(&r);
+}
+
 /* Several small rises that each stay inside the tolerance but add up beyond
  * it: compared with the lowest earlier reading, the third one is flagged. */
 Test(qc, not_falling_creep)
