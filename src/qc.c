@@ -591,7 +591,12 @@ static enum sg_status rule_mass_balance(const struct sg_record *rec, const struc
         return set_value(res, "sieve_loss_pct", "%", (double)NAN,
                          "no pan row: the fines washed through were not weighed, so no mass balance", err);
     const double total_g = sg_sieve_total_retained(rec->sieve, rec->n_sieve);
-    const double loss_pct = 100.0 * (rec->sample_dry_mass_g - total_g) / rec->sample_dry_mass_g;
+    /* a balance exact to the masses' own digits is 0, not the round-off of
+     * summing them (e.g. -1.2e-14 %) */
+    double loss_g = rec->sample_dry_mass_g - total_g;
+    if (fabs(loss_g) <= 1e-9 * rec->sample_dry_mass_g)
+        loss_g = 0.0;
+    const double loss_pct = 100.0 * loss_g / rec->sample_dry_mass_g;
     enum sg_status st = set_value(res, "sieve_loss_pct", "%", loss_pct,
                                   "100 (sample dry mass - sum retained incl. pan) / sample dry mass; "
                                   "negative: a gain (METHODS.md 5.3)",

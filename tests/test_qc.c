@@ -709,6 +709,30 @@ Test(qc, mass_balance_at_and_past_the_limit)
     cr_assert_not(flagged);
 }
 
+Test(qc, exact_mass_balance_is_zero)
+{
+    /* 120.1 + 150.1 + 140.1 + 90.0 g = 500.3 g exactly, but the sum in
+     * binary floating point is 500.29999999999995: the loss is 0, not
+     * 1.1e-14 % of round-off */
+    struct sg_record rec;
+    sg_record_init(&rec);
+    rec.sample_dry_mass_g = 500.3;
+    rec.pos_sample_mass.line = 7;
+    const struct sg_sieve_row rows[] = {
+        {20.0, 0.0, {12, 1}}, {6.3, 120.1, {13, 1}}, {2.0, 150.1, {14, 1}}, {0.063, 140.1, {15, 1}}, {0.0, 90.0, {16, 1}}};
+    for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++)
+        cr_assert_eq(sg_record_add_sieve(&rec, rows[i]), SG_OK);
+    struct sg_result r;
+    sg_result_init(&r);
+    const struct sg_qc_limits lim = sg_qc_limits_default();
+    evaluate_with(&r, &rec, NULL, &lim);
+    const struct sg_quantity *q = sg_result_quantity(&r, "sieve_loss_pct");
+    cr_assert(q != NULL && q->determined);
+    cr_assert(q->value == 0.0, "%.17g", q->value);
+    sg_result_release(&r);
+    sg_record_release(&rec);
+}
+
 Test(qc, mass_balance_needs_a_pan)
 {
     bool flagged = true;
