@@ -50,14 +50,16 @@ static const char cal_help[] =
     "                            and fines change when reduced with the other; CSV\n"
     "\n"
     "options:\n"
-    "      --register DIR        the register folder (default ./calibration)\n"
+    "      --calibration DIR     (every command) the register folder (default\n"
+    "                            ./calibration), as for 'sedgrade reduce';\n"
+    "                            --register DIR is the same\n"
     "      --plot FORMAT         (show, fit) also chart each part: svg, png or pdf, written\n"
     "                            to the current folder as ID_DATE.PART.FORMAT\n"
     "  -h, --help                this help\n"
     "\n"
     "exit status: 0 ok; 2 bad input or usage; 3 I/O failure.\n";
 
-enum { OPT_REGISTER = 256, OPT_DATE, OPT_WITHIN, OPT_CSV, OPT_EVENT, OPT_FOLDER, OPT_FROM, OPT_TO, OPT_AREA, OPT_PLOT };
+enum { OPT_CALIBRATION = 256, OPT_DATE, OPT_WITHIN, OPT_CSV, OPT_EVENT, OPT_FOLDER, OPT_FROM, OPT_TO, OPT_AREA, OPT_PLOT };
 
 struct cal_opts {
     const char *register_dir;
@@ -106,7 +108,9 @@ static bool parse_date_opt(const struct cal_opts *o, struct sg_date *d)
 static int parse_opts(int argc, char **argv, struct cal_opts *o)
 {
     static const struct option longopts[] = {
-        {"register", required_argument, NULL, OPT_REGISTER}, {"date", required_argument, NULL, OPT_DATE},
+        {"calibration", required_argument, NULL, OPT_CALIBRATION},
+        {"register", required_argument, NULL, OPT_CALIBRATION}, /* the same: the name the cal command first had */
+        {"date", required_argument, NULL, OPT_DATE},
         {"within", required_argument, NULL, OPT_WITHIN},     {"csv", no_argument, NULL, OPT_CSV},
         {"event", required_argument, NULL, OPT_EVENT},       {"folder", required_argument, NULL, OPT_FOLDER},
         {"from", required_argument, NULL, OPT_FROM},         {"to", required_argument, NULL, OPT_TO},
@@ -121,7 +125,7 @@ static int parse_opts(int argc, char **argv, struct cal_opts *o)
     int c;
     while ((c = getopt_long(argc, argv, ":h", longopts, NULL)) != -1) {
         switch (c) {
-        case OPT_REGISTER: o->register_dir = optarg; break;
+        case OPT_CALIBRATION: o->register_dir = optarg; break;
         case OPT_DATE: o->date_text = optarg; break;
         case OPT_WITHIN:
             if (!sg_cli_parse_size("--within", optarg, 0, CAL_WITHIN_MAX_DAYS, &o->within_days))
