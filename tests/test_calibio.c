@@ -388,6 +388,29 @@ Test(calibio, load_by_id)
     cr_assert(!sg_calibio_path("a-very-long-directory-name-that-does-not-fit-in-the-buffer", "X", path, 32));
 }
 
+/* Guards the exit status of 'cal fit FILE' and 'cal add --event FILE': a file named on the command
+ * line that is missing (or is a folder) is an I/O failure, SG_EIO, as a test record is for reduce
+ * (cal fit used to report SG_ENOTFOUND, exit 2, while cal add gave 3). */
+Test(calibio, read_input_missing_file_is_an_io_failure)
+{
+    char *text = (char *)1;
+    size_t len = 7;
+    struct sg_error err;
+    cr_assert_eq(sg_calibio_read_input(EVENTS "/no-such-file.csv", &text, &len, &err), SG_EIO);
+    cr_assert_null(text);
+    cr_assert_eq(len, 0);
+    cr_assert_eq(err.line, 0);
+    cr_assert(strstr(err.msg, "no-such-file.csv': No such file or directory (check the path") != NULL, "%s",
+              err.msg);
+    cr_assert_eq(sg_calibio_read_input(EVENTS, &text, &len, &err), SG_EIO);
+    cr_assert(strstr(err.msg, "it is a folder") != NULL, "%s", err.msg);
+    cr_assert_eq(sg_calibio_read_input(EVENTS "/th-ok.csv", &text, &len, &err), SG_OK, "%s", err.msg);
+    cr_assert_not_null(text);
+    cr_assert_eq(strlen(text), len);
+    cr_assert(strncmp(text, "# a verification", 16) == 0, "%s", text);
+    free(text);
+}
+
 /* ---- appending ------------------------------------------------------------------------ */
 
 Test(calibio, append_keeps_earlier_bytes)

@@ -43,6 +43,14 @@ enum sg_status sg_calibio_parse(const char *text, size_t len, enum sg_calibio_mo
 enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode, struct sg_cal_instrument *ins,
                                     struct sg_error *err);
 
+/* Reads a file named on the command line (an event file for 'cal add', a
+ * standalone observations file for 'cal fit') into *text (NUL-terminated,
+ * *len bytes; the caller frees it; NULL on failure). A file that does not
+ * exist or cannot be read is SG_EIO with the path, the system's reason and
+ * what to do, as a missing test record is for 'reduce'; SG_ELIMIT beyond
+ * SG_CALIBIO_FILE_MAX; SG_ENOMEM. */
+enum sg_status sg_calibio_read_input(const char *path, char **text, size_t *len, struct sg_error *err);
+
 /* Writes "<register_dir>/<id>.csv" into buf. false if it does not fit or id
  * is not a valid instrument ID ([A-Za-z0-9._-], 1-63 characters, not
  * starting with '.'). */

@@ -1,6 +1,7 @@
 /* cal.c - `sedgrade cal`: the instrument calibration register (show, fit,
  * add, status, impact). The computations are calib.h's; files calibio.h's. */
 #include <dirent.h>
+#include <errno.h>
 #include <getopt.h>
 #include <math.h>
 #include <stdio.h>
@@ -483,9 +484,18 @@ static int cal_fit(const struct cal_opts *o)
         sg_cli_errorf("'cal fit' needs one observations file (see 'sedgrade cal --help')");
         return SG_EXIT_INPUT;
     }
-    struct sg_cal_instrument ins;
+    /* Read as 'reduce' reads a test record: a missing file is an I/O failure (exit 3). */
+    char *text = NULL;
+    size_t len = 0;
     struct sg_error err;
-    const enum sg_status st = sg_calibio_read_file(o->args[0], SG_CALIBIO_STANDALONE, &ins, &err);
+    enum sg_status st = sg_calibio_read_input(o->args[0], &text, &len, &err);
+    if (st != SG_OK) {
+        sg_cli_report(o->args[0], &err);
+        return sg_cli_exit_for(st);
+    }
+    struct sg_cal_instrument ins;
+    st = sg_calibio_parse(text, len, SG_CALIBIO_STANDALONE, &ins, &err);
+    free(text);
     if (st != SG_OK) {
         sg_cli_report(o->args[0], &err);
         sg_cal_instrument_release(&ins);
@@ -513,7 +523,7 @@ static int cal_add(const struct cal_opts *o)
     char *text = NULL;
     size_t len = 0;
     struct sg_error err;
-    enum sg_status st = sg_recordio_read_file(o->event_file, &text, &len, &err);
+    enum sg_status st = sg_calibio_read_input(o->event_file, &text, &len, &err);
     if (st != SG_OK) {
         sg_cli_report(o->event_file, &err);
         return sg_cli_exit_for(st);
@@ -756,8 +766,15 @@ static int cal_impact(const struct cal_opts *o)
     const char *to_entry = strchr(to_label, '@') + 1;
     struct file_list files = {0};
     struct stat sb;
-    if (stat(o->folder, &sb) != 0 || !S_ISDIR(sb.st_mode)) {
-        sg_cli_errorf("'%s' is not a folder (give --folder DIR with the test records)", o->folder);
+    /* A folder that cannot be opened is an I/O failure, as a missing record is for 'reduce'. */
+    if (stat(o->folder, &sb) != 0) {
+        sg_cli_errorf("%s: cannot open '%s': %s (check the path and its permissions)", o->folder, o->folder,
+                      strerror(errno));
+        return SG_EXIT_IO;
+    }
+    if (!S_ISDIR(sb.st_mode)) {
+        sg_cli_errorf("--folder '%s' is a file, not a folder (give --folder DIR, the folder of the test records)",
+                      o->folder);
         return SG_EXIT_INPUT;
     }
     if (!walk(o->folder, &files, 0)) {

@@ -854,6 +854,27 @@ static enum sg_status slurp(const char *path, char **out, size_t *len, struct sg
     return st;
 }
 
+enum sg_status sg_calibio_read_input(const char *path, char **text, size_t *len, struct sg_error *err)
+{
+    *text = NULL;
+    *len = 0;
+    const int fd = open(path, O_RDONLY | O_CLOEXEC);
+    if (fd < 0) {
+        const int e = errno;
+        return sg_error_set(err, SG_EIO, 0, 0, "cannot open '%s': %s (check the path and its permissions)", path,
+                            strerror(e));
+    }
+    struct stat sb;
+    enum sg_status st = SG_OK;
+    if (fstat(fd, &sb) == 0 && S_ISDIR(sb.st_mode))
+        st = sg_error_set(err, SG_EIO, 0, 0, "cannot read '%s': it is a folder (give a file of register rows)",
+                          path);
+    else
+        st = slurp_fd(fd, path, text, len, err);
+    (void)close(fd);
+    return st;
+}
+
 enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode, struct sg_cal_instrument *ins,
                                     struct sg_error *err)
 {
