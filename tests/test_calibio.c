@@ -749,6 +749,44 @@ Test(calibio, resolve_refusals)
     sg_record_release(&rec);
 }
 
+/* Guards the message for a register path that names a regular file: every entry point says it is
+ * a file, not a folder (SG_EINVAL: a usage mistake), where it used to say the folder "does not
+ * exist" (resolve) or fail as an I/O error on "<file>/<ID>.csv" (load, load_register, append). A
+ * missing folder is still SG_ENOTFOUND, "does not exist". */
+Test(calibio, register_path_that_is_a_file)
+{
+    const char *file = GEOMETRY "/T-TH.csv";
+    const char *frag = "T-TH.csv' is a file, not a folder (give --calibration DIR";
+    struct sg_cal_instrument ins;
+    struct sg_cal_register reg;
+    struct sg_error err;
+    cr_assert_eq(sg_calibio_load(file, "T-TH", &ins, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, frag) != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+    cr_assert_eq(sg_calibio_load_register(file, &reg, NULL, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, frag) != NULL, "%s", err.msg);
+    cr_assert_eq(reg.n, 0);
+    sg_cal_register_release(&reg);
+    const char ev[] = "event,2031-02-01,relocation\nby,tester\nlocation,store room\n";
+    cr_assert_eq(sg_calibio_append(file, "T-TH", ev, strlen(ev), &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, frag) != NULL, "%s", err.msg);
+    struct sg_record rec;
+    struct sg_constants k;
+    record_for(&rec, "", "", "T-TH", "", 2021, 1, 1);
+    cr_assert_eq(sg_calibio_resolve(file, &rec, &k, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "T-TH.csv' is a file, not a folder, and the record names") != NULL, "%s", err.msg);
+    cr_assert(strstr(err.msg, "does not exist") == NULL, "%s", err.msg);
+    cr_assert_eq(err.line, 9);
+    cr_assert_eq(err.col, 13);
+    /* a path through a file cannot be a folder: it does not exist */
+    cr_assert_eq(sg_calibio_resolve(GEOMETRY "/T-TH.csv/sub", &rec, &k, &err), SG_ENOTFOUND);
+    cr_assert(strstr(err.msg, "does not exist") != NULL, "%s", err.msg);
+    sg_record_release(&rec);
+    cr_assert_eq(sg_calibio_load("/nonexistent/register", "T-TH", &ins, &err), SG_ENOTFOUND);
+    cr_assert(strstr(err.msg, "folder '/nonexistent/register' does not exist") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+}
+
 Test(calibio, resolve_with_another_entry)
 {
     struct sg_record rec;

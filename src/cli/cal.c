@@ -573,13 +573,12 @@ static int cal_status(const struct cal_opts *o)
     struct sg_diag_list diags = {0};
     struct sg_error err;
     enum sg_status st = sg_calibio_load_register(o->register_dir, &reg, &diags, &err);
-    if (st == SG_ENOTFOUND || st == SG_EIO || st == SG_ENOMEM) {
-        if (diags.n == 0) {
-            sg_cli_report(NULL, &err);
-            sg_cal_register_release(&reg);
-            sg_diag_release(&diags);
-            return sg_cli_exit_for(st);
-        }
+    /* A failure with no file reported is the folder's own (missing, a file, unreadable) or memory. */
+    if (st != SG_OK && diags.n == 0) {
+        sg_cli_report(NULL, &err);
+        sg_cal_register_release(&reg);
+        sg_diag_release(&diags);
+        return sg_cli_exit_for(st);
     }
     for (size_t i = 0; i < diags.n; i++)
         sg_cli_report(NULL, &diags.items[i]);

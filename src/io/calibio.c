@@ -897,6 +897,62 @@ bool sg_calibio_path(const char *register_dir, const char *id, char *buf, size_t
     return n > 0 && (size_t)n < size;
 }
 
+/* ---- the register folder ------------------------------------------------------------- */
+
+/* What a register path names: a folder, nothing, something else (a file), or
+ * a path that cannot be looked at (errnum says why). */
+enum dir_kind { DIR_FOLDER = 1, DIR_MISSING = -1, DIR_NOT_FOLDER = -2, DIR_UNREADABLE = -3 };
+
+static enum dir_kind dir_kind(const char *dir, int *errnum)
+{
+    struct stat sb;
+    *errnum = 0;
+    if (dir == NULL || dir[0] == '\0')
+        return DIR_MISSING;
+    if (stat(dir, &sb) == 0)
+        return S_ISDIR(sb.st_mode) ? DIR_FOLDER : DIR_NOT_FOLDER;
+    *errnum = errno;
+    /* ENOTDIR: a component of the path is a file, so the folder cannot exist */
+    return *errnum == ENOENT || *errnum == ENOTDIR ? DIR_MISSING : DIR_UNREADABLE;
+}
+
+/* The message for a register path that is not a usable folder: SG_ENOTFOUND
+ * (missing), SG_EINVAL (a file: a usage mistake, not a missing folder),
+ * SG_EIO (cannot be looked at). why (may be "") goes after the problem and
+ * what_to_do inside the closing parentheses. */
+static enum sg_status dir_problem(const char *dir, enum dir_kind kind, int errnum, unsigned line, unsigned col,
+                                  const char *why, const char *what_to_do, struct sg_error *err)
+{
+    if (dir == NULL)
+        dir = "";
+    switch (kind) {
+    case DIR_NOT_FOLDER:
+        return sg_error_set(err, SG_EINVAL, line, col,
+                            "the calibration register '%s' is a file, not a folder%s (give --calibration DIR, the "
+                            "folder that holds the instrument files <ID>.csv%s)",
+                            dir, why, what_to_do);
+    case DIR_UNREADABLE:
+        return sg_error_set(err, SG_EIO, line, col,
+                            "cannot open the calibration register folder '%s': %s%s (check the path and its "
+                            "permissions%s)",
+                            dir, strerror(errnum), why, what_to_do);
+    case DIR_MISSING:
+    case DIR_FOLDER: break;
+    }
+    return sg_error_set(err, SG_ENOTFOUND, line, col,
+                        "the calibration register folder '%s' does not exist%s (give --calibration DIR, the folder "
+                        "that holds the instrument files <ID>.csv%s)",
+                        dir, why, what_to_do);
+}
+
+/* SG_OK when register_dir is a folder, else dir_problem's message. */
+static enum sg_status check_register_dir(const char *register_dir, struct sg_error *err)
+{
+    int errnum;
+    const enum dir_kind k = dir_kind(register_dir, &errnum);
+    return k == DIR_FOLDER ? SG_OK : dir_problem(register_dir, k, errnum, 0, 0, "", "", err);
+}
+
 /* Checks the file's instrument row names the ID its file name gives. */
 static enum sg_status check_id(const struct sg_cal_instrument *ins, const char *id, const char *path,
                                struct sg_error *err)
@@ -918,6 +974,13 @@ enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct 
         return sg_error_set(err, SG_EINVAL, 0, 0,
                             "'%.64s' is not an instrument ID (1-63 characters of A-Z a-z 0-9 . _ -)", id);
     enum sg_status st = sg_calibio_read_file(path, SG_CALIBIO_REGISTER, ins, err);
+    /* The file could not be opened: say so of the folder when the folder is at fault
+     * (looked at only then, so a load that works costs no extra call). */
+    if (st == SG_ENOTFOUND || st == SG_EIO) {
+        const enum sg_status dst = check_register_dir(register_dir, err);
+        if (dst != SG_OK)
+            return dst;
+    }
     if (st == SG_ENOTFOUND)
         return sg_error_set(err, SG_ENOTFOUND, 0, 0,
                             "instrument '%s' is not in the calibration register '%s' (no file %s; check the ID, "
@@ -955,9 +1018,13 @@ enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_
     DIR *dir = opendir(register_dir);
     if (dir == NULL) {
         const int e = errno;
-        return sg_error_set(err, e == ENOENT ? SG_ENOTFOUND : SG_EIO, 0, 0,
-                            "cannot open the calibration register '%s': %s (give --register DIR)", register_dir,
-                            strerror(e));
+        int errnum;
+        enum dir_kind k = dir_kind(register_dir, &errnum);
+        if (k == DIR_FOLDER) { /* a folder that cannot be listed */
+            k = DIR_UNREADABLE;
+            errnum = e;
+        }
+        return dir_problem(register_dir, k, errnum, 0, 0, "", "", err);
     }
     char **names = NULL;
     size_t n = 0, cap = 0;
@@ -1241,11 +1308,14 @@ enum sg_status sg_calibio_append(const char *register_dir, const char *id, const
     const int n = snprintf(lock_path, sizeof lock_path, "%s/%s", register_dir, SG_CALIBIO_LOCK_NAME);
     if (n < 0 || (size_t)n >= sizeof lock_path)
         return sg_error_set(err, SG_EIO, 0, 0, "register path '%s' is too long", register_dir);
+    enum sg_status st = check_register_dir(register_dir, err);
+    if (st != SG_OK)
+        return st;
 
     struct sg_cal_instrument add;
     struct rowset rows;
     memset(&rows, 0, sizeof rows);
-    enum sg_status st = parse_rows(event_text, len, SG_CALIBIO_EVENTS, &add, &rows, err);
+    st = parse_rows(event_text, len, SG_CALIBIO_EVENTS, &add, &rows, err);
     if (st != SG_OK) {
         sg_cal_instrument_release(&add);
         return st;
@@ -1883,16 +1953,12 @@ enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, co
                             "the record names register instruments but no test date (give test,date so the "
                             "calibration in force can be chosen)");
     const char *register_dir = cache->register_dir;
-    if (cache->dir_state == 0) {
-        struct stat sb;
-        cache->dir_state = register_dir != NULL && stat(register_dir, &sb) == 0 && S_ISDIR(sb.st_mode) ? 1 : -1;
-    }
-    if (cache->dir_state < 0)
-        return sg_error_set(err, SG_ENOTFOUND, line, col,
-                            "the calibration register folder '%s' does not exist, and the record names register "
-                            "instruments (give --calibration DIR, or drop the instrument IDs and give the "
-                            "constants inline)",
-                            register_dir ? register_dir : "");
+    if (cache->dir_state == 0)
+        cache->dir_state = (int)dir_kind(register_dir, &cache->dir_errno);
+    if (cache->dir_state != DIR_FOLDER)
+        return dir_problem(register_dir, (enum dir_kind)cache->dir_state, cache->dir_errno, line, col,
+                           ", and the record names register instruments",
+                           ", or drop the instrument IDs and give the constants inline", err);
     enum sg_status st = SG_OK;
     const struct sg_cal_result *res = NULL;
     if (rec->hydrometer[0])
