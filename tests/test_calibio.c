@@ -528,6 +528,65 @@ Test(calibio, append_refuses_when_the_register_file_is_invalid)
     remove_register(dir);
 }
 
+/* Guards against the same event being appended twice (a 'cal add' run again): an event with the
+ * date, type and observations of one already recorded, and no note of its own, is refused with
+ * SG_EINVAL at its event row and the file is left as it was; a note saying why records a genuine
+ * repeat; a different location or observation is a different event. */
+Test(calibio, append_refuses_a_repeated_event)
+{
+    char dir[64], path[128];
+    copy_register(dir, sizeof dir);
+    (void)snprintf(path, sizeof path, "%s/T-TH.csv", dir);
+    struct sg_error err;
+    cr_assert_eq(append_file(dir, "T-TH", EVENTS "/th-ok.csv", &err), SG_OK, "%s", err.msg);
+    size_t before_len, after_len;
+    char *before = slurp(path, &before_len);
+    cr_assert_eq(append_file(dir, "T-TH", EVENTS "/th-ok.csv", &err), SG_EINVAL);
+    cr_assert_eq(err.line, 2); /* th-ok.csv opens with a comment line */
+    cr_assert_eq(err.col, 1);
+    cr_assert(strstr(err.msg, "this verification of 2031-02-01 is already in the register") != NULL, "%s",
+              err.msg);
+    cr_assert(strstr(err.msg, "T-TH.csv line ") != NULL, "%s", err.msg);
+    cr_assert(strstr(err.msg, "note row") != NULL, "%s", err.msg);
+    char *after = slurp(path, &after_len);
+    cr_assert_eq(after_len, before_len);
+    cr_assert_eq(memcmp(before, after, before_len), 0);
+    free(after);
+    free(before);
+
+    /* the same observations in another order, or one value changed: another event */
+    const char other[] = "event,2031-02-01,verification\nby,tester\nmethod,ice point\nice_point,0.15\n"
+                         "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", other, strlen(other), &err), SG_OK, "%s", err.msg);
+    /* the same, differing only in who did it: still a repeat (the observations decide) */
+    const char by[] = "event,2031-02-01,verification\nby,someone else\nmethod,ice point\nice_point,0.15\n"
+                      "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", by, strlen(by), &err), SG_EINVAL);
+    /* a genuine repeat says why in a note, and is then recorded; once */
+    const char again[] = "event,2031-02-01,verification\nby,tester\nmethod,ice point\nice_point,0.15\n"
+                         "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n"
+                         "note,repeated after refilling the ice bath\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", again, strlen(again), &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", again, strlen(again), &err), SG_EINVAL);
+    /* events without observations: a relocation to another place is another event */
+    const char move1[] = "event,2031-03-01,relocation\nby,tester\nlocation,bench 2\n";
+    const char move2[] = "event,2031-03-01,relocation\nby,tester\nlocation,bench 3\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", move1, strlen(move1), &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", move2, strlen(move2), &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", move1, strlen(move1), &err), SG_EINVAL);
+    /* twice in one event file: refused at the second, nothing of the file is added */
+    const char twice[] = "event,2031-04-01,relocation\nby,tester\nlocation,store\n"
+                         "event,2031-04-01,relocation\nby,tester\nlocation,store\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", twice, strlen(twice), &err), SG_EINVAL);
+    cr_assert_eq(err.line, 4);
+    cr_assert(strstr(err.msg, "(this file line 1:") != NULL, "%s", err.msg);
+    struct sg_cal_instrument ins;
+    cr_assert_eq(sg_calibio_load(dir, "T-TH", &ins, &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(ins.n_events, 6);
+    sg_cal_instrument_release(&ins);
+    remove_register(dir);
+}
+
 #define WRITERS 4
 #define EACH 8
 
@@ -546,9 +605,13 @@ Test(calibio, concurrent_appends_lose_nothing)
         cr_assert_geq(pids[w], 0);
         if (pids[w] == 0) {
             int failures = 0;
-            for (int i = 0; i < EACH; i++)
-                if (sg_calibio_append(dir, "T-TH", ev, ev_len, NULL) != SG_OK)
+            for (int i = 0; i < EACH; i++) {
+                /* each append its own note: an identical event would be refused as a repeat */
+                char text[1024];
+                const int n = snprintf(text, sizeof text, "%snote,writer %d append %d\n", ev, w, i);
+                if (n < 0 || (size_t)n >= sizeof text || sg_calibio_append(dir, "T-TH", text, (size_t)n, NULL) != SG_OK)
                     failures++;
+            }
             _exit(failures);
         }
     }

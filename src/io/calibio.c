@@ -1173,6 +1173,62 @@ static enum sg_status relabel(struct sg_error *err, enum sg_status st, const cha
     return st;
 }
 
+/* true when a and b are the same number or both not given (NaN). */
+static bool same_value(double a, double b)
+{
+    return (isnan(a) && isnan(b)) || a == b; /* exact on purpose: both were read from text the same way */
+}
+
+/* true when event ev repeats the recorded event old: the same date and type,
+ * the same observations (kinds and values, in the same order) with the same
+ * gravimetric conditions, the same new location (relocation), and no note
+ * that old lacks. A note of its own is how a genuine repeat is recorded. */
+static bool repeats(const struct sg_cal_event *old, const struct sg_cal_event *ev)
+{
+    if (sg_date_days(old->date) != sg_date_days(ev->date) || old->type != ev->type || old->n_obs != ev->n_obs ||
+        strcmp(old->location, ev->location) != 0 || !same_value(old->water_temp_c, ev->water_temp_c) ||
+        !same_value(old->air_density_g_ml, ev->air_density_g_ml) ||
+        !same_value(old->weights_density_g_ml, ev->weights_density_g_ml) ||
+        !same_value(old->expansion_per_k, ev->expansion_per_k))
+        return false;
+    for (size_t i = 0; i < ev->n_obs; i++)
+        if (old->obs[i].kind != ev->obs[i].kind || !same_value(old->obs[i].x, ev->obs[i].x) ||
+            !same_value(old->obs[i].y, ev->obs[i].y))
+            return false;
+    for (size_t i = 0; i < ev->n_notes; i++) {
+        bool found = false;
+        for (size_t j = 0; j < old->n_notes && !found; j++)
+            found = strcmp(old->notes[j], ev->notes[i]) == 0;
+        if (!found)
+            return false;
+    }
+    return true;
+}
+
+/* Refuses a new event (index first_new on) that repeats one recorded before
+ * it (a command run twice would otherwise append the same event twice to
+ * an append-only history). Located at the new event's row. */
+static enum sg_status refuse_repeats(const struct sg_cal_instrument *ins, size_t first_new, const char *path,
+                                     struct sg_error *err)
+{
+    for (size_t i = first_new; i < ins->n_events; i++) {
+        const struct sg_cal_event *ev = &ins->events[i];
+        for (size_t j = 0; j < i; j++) {
+            if (!repeats(&ins->events[j], ev))
+                continue;
+            char date[11];
+            sg_date_format(ev->date, date);
+            return sg_error_set(err, SG_EINVAL, ev->line, 1,
+                                "this %s of %s is already in the register (%.200s line %u: the same date, type "
+                                "and observations), so it is not added again (history is append-only; to record "
+                                "a genuine repeat, give the new event a note row saying why)",
+                                sg_cal_event_type_name(ev->type), date, j < first_new ? path : "this file",
+                                ins->events[j].line);
+        }
+    }
+    return SG_OK;
+}
+
 static void sync_dir(const char *dir)
 {
     const int fd = open(dir, O_RDONLY | O_DIRECTORY);
@@ -1222,7 +1278,7 @@ static enum sg_status append_locked(const char *register_dir, const char *id, co
         if ((st = sg_cal_instrument_add_event(&ins, &add->events[i], err)) != SG_OK)
             goto cleanup;
     add->n_events = 0;
-    if ((st = sg_cal_validate(&ins, err)) != SG_OK)
+    if ((st = refuse_repeats(&ins, first_new, path, err)) != SG_OK || (st = sg_cal_validate(&ins, err)) != SG_OK)
         goto cleanup;
     for (size_t i = first_new; i < ins.n_events; i++) {
         const struct sg_cal_event *ev = &ins.events[i];
