@@ -274,6 +274,106 @@ ParameterizedTest(const struct bad_case *c, calibio, parse_errors_are_located)
     sg_cal_instrument_release(&ins);
 }
 
+/* true when msg is printable UTF-8 text: no control character, no byte outside a valid sequence. */
+static bool printable_utf8(const char *msg)
+{
+    const unsigned char *s = (const unsigned char *)msg;
+    for (size_t i = 0; s[i] != '\0';) {
+        size_t len = 0;
+        if (s[i] >= 0x20 && s[i] < 0x7F)
+            len = 1;
+        else if (s[i] >= 0xC2 && s[i] <= 0xDF)
+            len = 2;
+        else if (s[i] >= 0xE0 && s[i] <= 0xEF)
+            len = 3;
+        else if (s[i] >= 0xF0 && s[i] <= 0xF4)
+            len = 4;
+        if (len == 0 || (len == 2 && s[i] == 0xC2 && s[i + 1] < 0xA0))
+            return false;
+        for (size_t j = 1; j < len; j++)
+            if (s[i + j] < 0x80 || s[i + j] > 0xBF)
+                return false;
+        i += len;
+    }
+    return true;
+}
+
+/* Guards the register reader's messages against bytes that are not UTF-8 text: such a byte is
+ * refused where it stands (line, column of the byte) and named by its value, never copied into
+ * the message (it used to be echoed raw, e.g. "unknown row 'm<0xE9>thod'"). */
+static const struct bad_case non_utf8_cases[] = {
+    /* Latin-1 e-acute in a row name, in a number, in a text */
+    {"instrument,T-X\nkind,thermometer\nm\xE9thod,x\n", SG_EPARSE, 3, 2, "byte 0xE9 is not UTF-8 text"},
+    {"instrument,T-X\nkind,thermometer\nevent,2020-01-05,calibration\nice_point,0.\xFF\n", SG_EPARSE, 4, 13,
+     "byte 0xFF is not UTF-8 text (save the file as UTF-8"},
+    {"instrument,T-X\nkind,thermometer\nmaker,M\xFCller\n", SG_EPARSE, 3, 8, "byte 0xFC"},
+    /* a continuation byte alone, an overlong form, a surrogate, a sequence cut by the line end */
+    {"instrument,T-X\x80\n", SG_EPARSE, 1, 15, "byte 0x80"},
+    {"instrument,T-X\nkind,\xC0\xAF\n", SG_EPARSE, 2, 6, "byte 0xC0"},
+    {"instrument,T-X\nnote,\xED\xA0\x80\n", SG_EPARSE, 2, 6, "byte 0xED"},
+    {"instrument,T-X\nnote,ab\xE2\x82\n", SG_EPARSE, 2, 8, "byte 0xE2"},
+    /* a control character (a terminal escape) */
+    {"instrument,T-X\nnote,\x1B[31mred\n", SG_EPARSE, 2, 6, "control character 0x1B"},
+    /* UTF-16 */
+    {"\xFF\xFEi\0n\0", SG_EPARSE, 1, 1, "UTF-16"},
+};
+
+ParameterizedTestParameters(calibio, non_utf8_bytes_are_located_not_echoed)
+{
+    const size_t n = sizeof non_utf8_cases / sizeof non_utf8_cases[0];
+    struct bad_case *cases = cr_malloc(n * sizeof *cases);
+    for (size_t i = 0; cases != NULL && i < n; i++) {
+        cases[i] = non_utf8_cases[i];
+        cases[i].text = shared_strdup(non_utf8_cases[i].text);
+        cases[i].frag = shared_strdup(non_utf8_cases[i].frag);
+    }
+    return cr_make_param_array(struct bad_case, cases, n, free_cases);
+}
+
+ParameterizedTest(const struct bad_case *c, calibio, non_utf8_bytes_are_located_not_echoed)
+{
+    struct sg_cal_instrument ins;
+    struct sg_error err;
+    const enum sg_status st = parse(c->text, SG_CALIBIO_REGISTER, &ins, &err);
+    cr_assert_eq(st, c->st, "status %d, message %s", st, err.msg);
+    cr_assert_eq(err.line, c->line, "line %u (%s)", err.line, err.msg);
+    cr_assert_eq(err.col, c->col, "col %u (%s)", err.col, err.msg);
+    cr_assert(strstr(err.msg, c->frag) != NULL, "message '%s' lacks '%s'", err.msg, c->frag);
+    cr_assert(printable_utf8(err.msg), "message holds a raw byte: %s", err.msg);
+    sg_cal_instrument_release(&ins);
+}
+
+/* Guards the same for text that reaches a message some other way: an instrument ID or folder
+ * given on the command line, and a UTF-8 character cut by a message's length limit, are shown
+ * with \xNN escapes; valid UTF-8 text is accepted and kept. */
+Test(calibio, messages_escape_bytes_that_are_not_text)
+{
+    struct sg_cal_instrument ins;
+    struct sg_error err;
+    cr_assert_eq(sg_calibio_load(GEOMETRY, "T-\xE9\x1B", &ins, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "'T-\\xE9\\x1B' is not an instrument ID") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+    cr_assert_eq(sg_calibio_load("/nonexistent/caf\xE9", "T-TH", &ins, &err), SG_ENOTFOUND);
+    cr_assert(strstr(err.msg, "'/nonexistent/caf\\xE9' does not exist") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+    /* 39 letters then a two-byte character: the message's 40-byte excerpt ends inside it */
+    cr_assert_eq(parse("instrument,T-X\nkind,thermometer\naaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaa\xC3\xA9,1\n",
+                       SG_CALIBIO_REGISTER, &ins, &err),
+                 SG_EPARSE);
+    cr_assert(strstr(err.msg, "aaa\\xC3' (did you mean") != NULL, "%s", err.msg);
+    cr_assert(printable_utf8(err.msg), "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+    /* UTF-8 text is fine, in a name and in a message */
+    cr_assert_eq(parse("instrument,T-X\nkind,thermometer\nmaker,M\xC3\xBCller \xE2\x80\x94 \xCE\xBC\n",
+                       SG_CALIBIO_REGISTER, &ins, &err),
+                 SG_OK, "%s", err.msg);
+    cr_assert_str_eq(ins.maker, "M\xC3\xBCller \xE2\x80\x94 \xCE\xBC");
+    sg_cal_instrument_release(&ins);
+    cr_assert_eq(parse("instrument,T-X\nkind,\xCE\xBCmeter\n", SG_CALIBIO_REGISTER, &ins, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "unknown kind '\xCE\xBCmeter'") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+}
+
 Test(calibio, parse_nul_byte_and_stray_cr)
 {
     const char text[] = "instrument,T-X\nkind,ther\0mometer\n";

@@ -53,6 +53,84 @@ static bool buf_str(struct buf *b, const char *s)
     return buf_add(b, s, strlen(s));
 }
 
+/* ---- text: UTF-8 checks and messages that show only text ------------------------- */
+
+/* Length of the valid UTF-8 sequence at s[0..n) (Unicode 15, table 3-7), 0 if
+ * invalid. s[0] >= 0x80. */
+static size_t utf8_len(const unsigned char *s, size_t n)
+{
+    const unsigned char b = s[0];
+    size_t len;
+    unsigned char lo = 0x80, hi = 0xBF;
+    if (b >= 0xC2 && b <= 0xDF) {
+        len = 2;
+    } else if (b >= 0xE0 && b <= 0xEF) {
+        len = 3;
+        if (b == 0xE0)
+            lo = 0xA0; /* no overlong forms */
+        else if (b == 0xED)
+            hi = 0x9F; /* no surrogates */
+    } else if (b >= 0xF0 && b <= 0xF4) {
+        len = 4;
+        if (b == 0xF0)
+            lo = 0x90;
+        else if (b == 0xF4)
+            hi = 0x8F; /* nothing above U+10FFFF */
+    } else {
+        return 0;
+    }
+    if (n < len || s[1] < lo || s[1] > hi)
+        return 0;
+    for (size_t i = 2; i < len; i++)
+        if (s[i] < 0x80 || s[i] > 0xBF)
+            return 0;
+    return len;
+}
+
+/* A control character (C0, DEL, or C1 U+0080-U+009F) at s[0..n). */
+static bool is_control(const unsigned char *s, size_t n)
+{
+    return s[0] < 0x20 || s[0] == 0x7F || (n >= 2 && s[0] == 0xC2 && s[1] < 0xA0);
+}
+
+/* Rewrites err's message so that it holds only printable text: a byte that is
+ * a control character or not part of valid UTF-8 (a file path given on the
+ * command line, an instrument ID, a UTF-8 character cut by a length limit)
+ * is shown as \xNN. Applied to every message that leaves this module. */
+static void escape_message(struct sg_error *err)
+{
+    if (err == NULL)
+        return;
+    const unsigned char *m = (const unsigned char *)err->msg;
+    const size_t n = strnlen(err->msg, sizeof err->msg);
+    size_t i = 0;
+    while (i < n && m[i] >= 0x20 && m[i] < 0x7F)
+        i++;
+    if (i == n)
+        return; /* printable ASCII, nearly every message */
+    char out[sizeof err->msg];
+    const size_t room = sizeof out - 4; /* "..." and the NUL */
+    size_t o = 0;
+    for (i = 0; i < n;) {
+        const size_t len = m[i] < 0x80 ? 1 : utf8_len(m + i, n - i);
+        const bool plain = len > 0 && !is_control(m + i, n - i);
+        const size_t need = plain ? len : 4;
+        if (o + need > room) {
+            memcpy(out + o, "...", 3);
+            o += 3;
+            break;
+        }
+        if (plain)
+            memcpy(out + o, m + i, len);
+        else
+            (void)snprintf(out + o, 5, "\\x%02X", m[i]);
+        o += need;
+        i += plain ? len : 1;
+    }
+    out[o] = '\0';
+    memcpy(err->msg, out, o + 1);
+}
+
 /* ---- rows: CSV lines split into located fields ---------------------------------- */
 
 struct field {
@@ -189,12 +267,45 @@ static char detect_delim(const char *s, size_t n)
     return 0;
 }
 
+/* Refuses a line that is not UTF-8 text (a byte that is not part of valid
+ * UTF-8, or a control character other than tab), located at that byte and
+ * naming it by its value: the byte itself is never copied into a message. */
+static enum sg_status check_text(const char *line_text, size_t n, unsigned line, struct sg_error *err)
+{
+    const unsigned char *s = (const unsigned char *)line_text;
+    for (size_t i = 0; i < n;) {
+        if (s[i] >= 0x20 && s[i] < 0x7F) {
+            i++;
+            continue;
+        }
+        if (s[i] == '\t') {
+            i++;
+            continue;
+        }
+        if (s[i] < 0x80)
+            return sg_error_set(err, SG_EPARSE, line, (unsigned)i + 1,
+                                "control character 0x%02X in the line (the file is not plain text; save it as CSV)",
+                                s[i]);
+        const size_t len = utf8_len(s + i, n - i);
+        if (len == 0)
+            return sg_error_set(err, SG_EPARSE, line, (unsigned)i + 1,
+                                "byte 0x%02X is not UTF-8 text (save the file as UTF-8; a file written in Latin-1 "
+                                "or Windows-1252 must be converted)",
+                                s[i]);
+        i += len;
+    }
+    return SG_OK;
+}
+
 static enum sg_status split_rows(const char *text, size_t len, struct rowset *rs, struct sg_error *err)
 {
     memset(rs, 0, sizeof *rs);
     if (len > SG_CALIBIO_FILE_MAX)
         return sg_error_set(err, SG_ELIMIT, 0, 0, "file of %zu bytes is larger than the %u-byte limit", len,
                             SG_CALIBIO_FILE_MAX);
+    if (len >= 2 && (((unsigned char)text[0] == 0xFF && (unsigned char)text[1] == 0xFE) ||
+                     ((unsigned char)text[0] == 0xFE && (unsigned char)text[1] == 0xFF)))
+        return sg_error_set(err, SG_EPARSE, 1, 1, "the file is UTF-16 text, not UTF-8 (save the file as UTF-8)");
     size_t at = 0;
     if (len >= 3 && (unsigned char)text[0] == 0xEF && (unsigned char)text[1] == 0xBB &&
         (unsigned char)text[2] == 0xBF)
@@ -216,6 +327,9 @@ static enum sg_status split_rows(const char *text, size_t len, struct rowset *rs
         if (memchr(s, '\r', n) != NULL)
             return sg_error_set(err, SG_EPARSE, line, (unsigned)((const char *)memchr(s, '\r', n) - s) + 1,
                                 "stray carriage return inside the line (save the file with LF or CRLF line ends)");
+        const enum sg_status tst = check_text(s, n, line, err);
+        if (tst != SG_OK)
+            return tst;
         size_t k = 0;
         while (k < n && (s[k] == ' ' || s[k] == '\t'))
             k++;
@@ -804,7 +918,10 @@ static enum sg_status parse_rows(const char *text, size_t len, enum sg_calibio_m
 enum sg_status sg_calibio_parse(const char *text, size_t len, enum sg_calibio_mode mode,
                                 struct sg_cal_instrument *ins, struct sg_error *err)
 {
-    return parse_rows(text, len, mode, ins, NULL, err);
+    const enum sg_status st = parse_rows(text, len, mode, ins, NULL, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
 }
 
 /* ---- files --------------------------------------------------------------------------- */
@@ -854,7 +971,7 @@ static enum sg_status slurp(const char *path, char **out, size_t *len, struct sg
     return st;
 }
 
-enum sg_status sg_calibio_read_input(const char *path, char **text, size_t *len, struct sg_error *err)
+static enum sg_status read_input(const char *path, char **text, size_t *len, struct sg_error *err)
 {
     *text = NULL;
     *len = 0;
@@ -875,8 +992,16 @@ enum sg_status sg_calibio_read_input(const char *path, char **text, size_t *len,
     return st;
 }
 
-enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode, struct sg_cal_instrument *ins,
-                                    struct sg_error *err)
+enum sg_status sg_calibio_read_input(const char *path, char **text, size_t *len, struct sg_error *err)
+{
+    const enum sg_status st = read_input(path, text, len, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
+}
+
+static enum sg_status read_register_file(const char *path, enum sg_calibio_mode mode,
+                                         struct sg_cal_instrument *ins, struct sg_error *err)
 {
     char *text = NULL;
     size_t len = 0;
@@ -886,6 +1011,15 @@ enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode,
         return st;
     st = sg_calibio_parse(text, len, mode, ins, err);
     free(text);
+    return st;
+}
+
+enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode, struct sg_cal_instrument *ins,
+                                    struct sg_error *err)
+{
+    const enum sg_status st = read_register_file(path, mode, ins, err);
+    if (st != SG_OK)
+        escape_message(err);
     return st;
 }
 
@@ -965,8 +1099,8 @@ static enum sg_status check_id(const struct sg_cal_instrument *ins, const char *
     return SG_OK;
 }
 
-enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct sg_cal_instrument *ins,
-                               struct sg_error *err)
+static enum sg_status load_instrument(const char *register_dir, const char *id, struct sg_cal_instrument *ins,
+                                      struct sg_error *err)
 {
     char path[4096];
     sg_cal_instrument_init(ins);
@@ -991,6 +1125,15 @@ enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct 
     return st;
 }
 
+enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct sg_cal_instrument *ins,
+                               struct sg_error *err)
+{
+    const enum sg_status st = load_instrument(register_dir, id, ins, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
+}
+
 void sg_cal_register_init(struct sg_cal_register *reg)
 {
     memset(reg, 0, sizeof *reg);
@@ -1011,8 +1154,8 @@ static int cmp_str(const void *a, const void *b)
     return strcmp(*(char *const *)a, *(char *const *)b);
 }
 
-enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_register *reg,
-                                        struct sg_diag_list *diags, struct sg_error *err)
+static enum sg_status load_folder(const char *register_dir, struct sg_cal_register *reg, struct sg_diag_list *diags,
+                                  struct sg_error *err)
 {
     sg_cal_register_init(reg);
     DIR *dir = opendir(register_dir);
@@ -1094,6 +1237,7 @@ enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_
                 *err = d;
             break;
         }
+        escape_message(&d);
         (void)sg_diag_add(diags, &d);
         if (first == SG_OK) {
             first = fst;
@@ -1105,6 +1249,15 @@ enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_
         free(names[i]);
     free(names);
     return st != SG_OK ? st : first;
+}
+
+enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_register *reg,
+                                        struct sg_diag_list *diags, struct sg_error *err)
+{
+    const enum sg_status st = load_folder(register_dir, reg, diags, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
 }
 
 /* ---- append ------------------------------------------------------------------------------ */
@@ -1354,8 +1507,8 @@ cleanup:
     return st;
 }
 
-enum sg_status sg_calibio_append(const char *register_dir, const char *id, const char *event_text, size_t len,
-                                 struct sg_error *err)
+static enum sg_status append_events(const char *register_dir, const char *id, const char *event_text, size_t len,
+                                    struct sg_error *err)
 {
     char path[4096], lock_path[4096];
     if (!sg_calibio_path(register_dir, id, path, sizeof path))
@@ -1396,6 +1549,15 @@ enum sg_status sg_calibio_append(const char *register_dir, const char *id, const
     }
     sg_cal_instrument_release(&add);
     rowset_release(&rows);
+    return st;
+}
+
+enum sg_status sg_calibio_append(const char *register_dir, const char *id, const char *event_text, size_t len,
+                                 struct sg_error *err)
+{
+    const enum sg_status st = append_events(register_dir, id, event_text, len, err);
+    if (st != SG_OK)
+        escape_message(err);
     return st;
 }
 
@@ -1988,9 +2150,9 @@ static void join_used(const struct resolver *rv, struct sg_constants *k)
     out[at] = '\0';
 }
 
-enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
-                                              const char *override_id, const char *override_entry,
-                                              struct sg_constants *k, struct sg_error *err)
+static enum sg_status resolve_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
+                                     const char *override_id, const char *override_entry, struct sg_constants *k,
+                                     struct sg_error *err)
 {
     sg_constants_from_record(rec, k);
     sg_error_clear(err);
@@ -2043,6 +2205,16 @@ enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, co
     if (rv.n_used > 0)
         join_used(&rv, k);
     return SG_OK;
+}
+
+enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
+                                              const char *override_id, const char *override_entry,
+                                              struct sg_constants *k, struct sg_error *err)
+{
+    const enum sg_status st = resolve_cached(cache, rec, override_id, override_entry, k, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
 }
 
 enum sg_status sg_calibio_resolve_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
