@@ -274,6 +274,106 @@ ParameterizedTest(const struct bad_case *c, calibio, parse_errors_are_located)
     sg_cal_instrument_release(&ins);
 }
 
+/* true when msg is printable UTF-8 text: no control character, no byte outside a valid sequence. */
+static bool printable_utf8(const char *msg)
+{
+    const unsigned char *s = (const unsigned char *)msg;
+    for (size_t i = 0; s[i] != '\0';) {
+        size_t len = 0;
+        if (s[i] >= 0x20 && s[i] < 0x7F)
+            len = 1;
+        else if (s[i] >= 0xC2 && s[i] <= 0xDF)
+            len = 2;
+        else if (s[i] >= 0xE0 && s[i] <= 0xEF)
+            len = 3;
+        else if (s[i] >= 0xF0 && s[i] <= 0xF4)
+            len = 4;
+        if (len == 0 || (len == 2 && s[i] == 0xC2 && s[i + 1] < 0xA0))
+            return false;
+        for (size_t j = 1; j < len; j++)
+            if (s[i + j] < 0x80 || s[i + j] > 0xBF)
+                return false;
+        i += len;
+    }
+    return true;
+}
+
+/* Guards the register reader's messages against bytes that are not UTF-8 text: such a byte is
+ * refused where it stands (line, column of the byte) and named by its value, never copied into
+ * the message (it used to be echoed raw, e.g. "unknown row 'm<0xE9>thod'"). */
+static const struct bad_case non_utf8_cases[] = {
+    /* Latin-1 e-acute in a row name, in a number, in a text */
+    {"instrument,T-X\nkind,thermometer\nm\xE9thod,x\n", SG_EPARSE, 3, 2, "byte 0xE9 is not UTF-8 text"},
+    {"instrument,T-X\nkind,thermometer\nevent,2020-01-05,calibration\nice_point,0.\xFF\n", SG_EPARSE, 4, 13,
+     "byte 0xFF is not UTF-8 text (save the file as UTF-8"},
+    {"instrument,T-X\nkind,thermometer\nmaker,M\xFCller\n", SG_EPARSE, 3, 8, "byte 0xFC"},
+    /* a continuation byte alone, an overlong form, a surrogate, a sequence cut by the line end */
+    {"instrument,T-X\x80\n", SG_EPARSE, 1, 15, "byte 0x80"},
+    {"instrument,T-X\nkind,\xC0\xAF\n", SG_EPARSE, 2, 6, "byte 0xC0"},
+    {"instrument,T-X\nnote,\xED\xA0\x80\n", SG_EPARSE, 2, 6, "byte 0xED"},
+    {"instrument,T-X\nnote,ab\xE2\x82\n", SG_EPARSE, 2, 8, "byte 0xE2"},
+    /* a control character (a terminal escape) */
+    {"instrument,T-X\nnote,\x1B[31mred\n", SG_EPARSE, 2, 6, "control character 0x1B"},
+    /* UTF-16 */
+    {"\xFF\xFEi\0n\0", SG_EPARSE, 1, 1, "UTF-16"},
+};
+
+ParameterizedTestParameters(calibio, non_utf8_bytes_are_located_not_echoed)
+{
+    const size_t n = sizeof non_utf8_cases / sizeof non_utf8_cases[0];
+    struct bad_case *cases = cr_malloc(n * sizeof *cases);
+    for (size_t i = 0; cases != NULL && i < n; i++) {
+        cases[i] = non_utf8_cases[i];
+        cases[i].text = shared_strdup(non_utf8_cases[i].text);
+        cases[i].frag = shared_strdup(non_utf8_cases[i].frag);
+    }
+    return cr_make_param_array(struct bad_case, cases, n, free_cases);
+}
+
+ParameterizedTest(const struct bad_case *c, calibio, non_utf8_bytes_are_located_not_echoed)
+{
+    struct sg_cal_instrument ins;
+    struct sg_error err;
+    const enum sg_status st = parse(c->text, SG_CALIBIO_REGISTER, &ins, &err);
+    cr_assert_eq(st, c->st, "status %d, message %s", st, err.msg);
+    cr_assert_eq(err.line, c->line, "line %u (%s)", err.line, err.msg);
+    cr_assert_eq(err.col, c->col, "col %u (%s)", err.col, err.msg);
+    cr_assert(strstr(err.msg, c->frag) != NULL, "message '%s' lacks '%s'", err.msg, c->frag);
+    cr_assert(printable_utf8(err.msg), "message holds a raw byte: %s", err.msg);
+    sg_cal_instrument_release(&ins);
+}
+
+/* Guards the same for text that reaches a message some other way: an instrument ID or folder
+ * given on the command line, and a UTF-8 character cut by a message's length limit, are shown
+ * with \xNN escapes; valid UTF-8 text is accepted and kept. */
+Test(calibio, messages_escape_bytes_that_are_not_text)
+{
+    struct sg_cal_instrument ins;
+    struct sg_error err;
+    cr_assert_eq(sg_calibio_load(GEOMETRY, "T-\xE9\x1B", &ins, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "'T-\\xE9\\x1B' is not an instrument ID") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+    cr_assert_eq(sg_calibio_load("/nonexistent/caf\xE9", "T-TH", &ins, &err), SG_ENOTFOUND);
+    cr_assert(strstr(err.msg, "'/nonexistent/caf\\xE9' does not exist") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+    /* 39 letters then a two-byte character: the message's 40-byte excerpt ends inside it */
+    cr_assert_eq(parse("instrument,T-X\nkind,thermometer\naaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaaa\xC3\xA9,1\n",
+                       SG_CALIBIO_REGISTER, &ins, &err),
+                 SG_EPARSE);
+    cr_assert(strstr(err.msg, "aaa\\xC3' (did you mean") != NULL, "%s", err.msg);
+    cr_assert(printable_utf8(err.msg), "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+    /* UTF-8 text is fine, in a name and in a message */
+    cr_assert_eq(parse("instrument,T-X\nkind,thermometer\nmaker,M\xC3\xBCller \xE2\x80\x94 \xCE\xBC\n",
+                       SG_CALIBIO_REGISTER, &ins, &err),
+                 SG_OK, "%s", err.msg);
+    cr_assert_str_eq(ins.maker, "M\xC3\xBCller \xE2\x80\x94 \xCE\xBC");
+    sg_cal_instrument_release(&ins);
+    cr_assert_eq(parse("instrument,T-X\nkind,\xCE\xBCmeter\n", SG_CALIBIO_REGISTER, &ins, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "unknown kind '\xCE\xBCmeter'") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+}
+
 Test(calibio, parse_nul_byte_and_stray_cr)
 {
     const char text[] = "instrument,T-X\nkind,ther\0mometer\n";
@@ -386,6 +486,29 @@ Test(calibio, load_by_id)
     char path[64];
     cr_assert(!sg_calibio_path("dir", "a/b", path, sizeof path));
     cr_assert(!sg_calibio_path("a-very-long-directory-name-that-does-not-fit-in-the-buffer", "X", path, 32));
+}
+
+/* Guards the exit status of 'cal fit FILE' and 'cal add --event FILE': a file named on the command
+ * line that is missing (or is a folder) is an I/O failure, SG_EIO, as a test record is for reduce
+ * (cal fit used to report SG_ENOTFOUND, exit 2, while cal add gave 3). */
+Test(calibio, read_input_missing_file_is_an_io_failure)
+{
+    char *text = (char *)1;
+    size_t len = 7;
+    struct sg_error err;
+    cr_assert_eq(sg_calibio_read_input(EVENTS "/no-such-file.csv", &text, &len, &err), SG_EIO);
+    cr_assert_null(text);
+    cr_assert_eq(len, 0);
+    cr_assert_eq(err.line, 0);
+    cr_assert(strstr(err.msg, "no-such-file.csv': No such file or directory (check the path") != NULL, "%s",
+              err.msg);
+    cr_assert_eq(sg_calibio_read_input(EVENTS, &text, &len, &err), SG_EIO);
+    cr_assert(strstr(err.msg, "it is a folder") != NULL, "%s", err.msg);
+    cr_assert_eq(sg_calibio_read_input(EVENTS "/th-ok.csv", &text, &len, &err), SG_OK, "%s", err.msg);
+    cr_assert_not_null(text);
+    cr_assert_eq(strlen(text), len);
+    cr_assert(strncmp(text, "# a verification", 16) == 0, "%s", text);
+    free(text);
 }
 
 /* ---- appending ------------------------------------------------------------------------ */
@@ -505,6 +628,65 @@ Test(calibio, append_refuses_when_the_register_file_is_invalid)
     remove_register(dir);
 }
 
+/* Guards against the same event being appended twice (a 'cal add' run again): an event with the
+ * date, type and observations of one already recorded, and no note of its own, is refused with
+ * SG_EINVAL at its event row and the file is left as it was; a note saying why records a genuine
+ * repeat; a different location or observation is a different event. */
+Test(calibio, append_refuses_a_repeated_event)
+{
+    char dir[64], path[128];
+    copy_register(dir, sizeof dir);
+    (void)snprintf(path, sizeof path, "%s/T-TH.csv", dir);
+    struct sg_error err;
+    cr_assert_eq(append_file(dir, "T-TH", EVENTS "/th-ok.csv", &err), SG_OK, "%s", err.msg);
+    size_t before_len, after_len;
+    char *before = slurp(path, &before_len);
+    cr_assert_eq(append_file(dir, "T-TH", EVENTS "/th-ok.csv", &err), SG_EINVAL);
+    cr_assert_eq(err.line, 2); /* th-ok.csv opens with a comment line */
+    cr_assert_eq(err.col, 1);
+    cr_assert(strstr(err.msg, "this verification of 2031-02-01 is already in the register") != NULL, "%s",
+              err.msg);
+    cr_assert(strstr(err.msg, "T-TH.csv line ") != NULL, "%s", err.msg);
+    cr_assert(strstr(err.msg, "note row") != NULL, "%s", err.msg);
+    char *after = slurp(path, &after_len);
+    cr_assert_eq(after_len, before_len);
+    cr_assert_eq(memcmp(before, after, before_len), 0);
+    free(after);
+    free(before);
+
+    /* the same observations in another order, or one value changed: another event */
+    const char other[] = "event,2031-02-01,verification\nby,tester\nmethod,ice point\nice_point,0.15\n"
+                         "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", other, strlen(other), &err), SG_OK, "%s", err.msg);
+    /* the same, differing only in who did it: still a repeat (the observations decide) */
+    const char by[] = "event,2031-02-01,verification\nby,someone else\nmethod,ice point\nice_point,0.15\n"
+                      "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", by, strlen(by), &err), SG_EINVAL);
+    /* a genuine repeat says why in a note, and is then recorded; once */
+    const char again[] = "event,2031-02-01,verification\nby,tester\nmethod,ice point\nice_point,0.15\n"
+                         "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n"
+                         "note,repeated after refilling the ice bath\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", again, strlen(again), &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", again, strlen(again), &err), SG_EINVAL);
+    /* events without observations: a relocation to another place is another event */
+    const char move1[] = "event,2031-03-01,relocation\nby,tester\nlocation,bench 2\n";
+    const char move2[] = "event,2031-03-01,relocation\nby,tester\nlocation,bench 3\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", move1, strlen(move1), &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", move2, strlen(move2), &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", move1, strlen(move1), &err), SG_EINVAL);
+    /* twice in one event file: refused at the second, nothing of the file is added */
+    const char twice[] = "event,2031-04-01,relocation\nby,tester\nlocation,store\n"
+                         "event,2031-04-01,relocation\nby,tester\nlocation,store\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", twice, strlen(twice), &err), SG_EINVAL);
+    cr_assert_eq(err.line, 4);
+    cr_assert(strstr(err.msg, "(this file line 1:") != NULL, "%s", err.msg);
+    struct sg_cal_instrument ins;
+    cr_assert_eq(sg_calibio_load(dir, "T-TH", &ins, &err), SG_OK, "%s", err.msg);
+    cr_assert_eq(ins.n_events, 6);
+    sg_cal_instrument_release(&ins);
+    remove_register(dir);
+}
+
 #define WRITERS 4
 #define EACH 8
 
@@ -523,9 +705,13 @@ Test(calibio, concurrent_appends_lose_nothing)
         cr_assert_geq(pids[w], 0);
         if (pids[w] == 0) {
             int failures = 0;
-            for (int i = 0; i < EACH; i++)
-                if (sg_calibio_append(dir, "T-TH", ev, ev_len, NULL) != SG_OK)
+            for (int i = 0; i < EACH; i++) {
+                /* each append its own note: an identical event would be refused as a repeat */
+                char text[1024];
+                const int n = snprintf(text, sizeof text, "%snote,writer %d append %d\n", ev, w, i);
+                if (n < 0 || (size_t)n >= sizeof text || sg_calibio_append(dir, "T-TH", text, (size_t)n, NULL) != SG_OK)
                     failures++;
+            }
             _exit(failures);
         }
     }
@@ -724,6 +910,44 @@ Test(calibio, resolve_refusals)
     cr_assert(strstr(err.msg, "T-BAD.csv:8:11") != NULL, "%s", err.msg);
     cr_assert_eq(err.line, 9);
     sg_record_release(&rec);
+}
+
+/* Guards the message for a register path that names a regular file: every entry point says it is
+ * a file, not a folder (SG_EINVAL: a usage mistake), where it used to say the folder "does not
+ * exist" (resolve) or fail as an I/O error on "<file>/<ID>.csv" (load, load_register, append). A
+ * missing folder is still SG_ENOTFOUND, "does not exist". */
+Test(calibio, register_path_that_is_a_file)
+{
+    const char *file = GEOMETRY "/T-TH.csv";
+    const char *frag = "T-TH.csv' is a file, not a folder (give --calibration DIR";
+    struct sg_cal_instrument ins;
+    struct sg_cal_register reg;
+    struct sg_error err;
+    cr_assert_eq(sg_calibio_load(file, "T-TH", &ins, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, frag) != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
+    cr_assert_eq(sg_calibio_load_register(file, &reg, NULL, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, frag) != NULL, "%s", err.msg);
+    cr_assert_eq(reg.n, 0);
+    sg_cal_register_release(&reg);
+    const char ev[] = "event,2031-02-01,relocation\nby,tester\nlocation,store room\n";
+    cr_assert_eq(sg_calibio_append(file, "T-TH", ev, strlen(ev), &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, frag) != NULL, "%s", err.msg);
+    struct sg_record rec;
+    struct sg_constants k;
+    record_for(&rec, "", "", "T-TH", "", 2021, 1, 1);
+    cr_assert_eq(sg_calibio_resolve(file, &rec, &k, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "T-TH.csv' is a file, not a folder, and the record names") != NULL, "%s", err.msg);
+    cr_assert(strstr(err.msg, "does not exist") == NULL, "%s", err.msg);
+    cr_assert_eq(err.line, 9);
+    cr_assert_eq(err.col, 13);
+    /* a path through a file cannot be a folder: it does not exist */
+    cr_assert_eq(sg_calibio_resolve(GEOMETRY "/T-TH.csv/sub", &rec, &k, &err), SG_ENOTFOUND);
+    cr_assert(strstr(err.msg, "does not exist") != NULL, "%s", err.msg);
+    sg_record_release(&rec);
+    cr_assert_eq(sg_calibio_load("/nonexistent/register", "T-TH", &ins, &err), SG_ENOTFOUND);
+    cr_assert(strstr(err.msg, "folder '/nonexistent/register' does not exist") != NULL, "%s", err.msg);
+    sg_cal_instrument_release(&ins);
 }
 
 Test(calibio, resolve_with_another_entry)

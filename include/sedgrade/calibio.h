@@ -43,14 +43,24 @@ enum sg_status sg_calibio_parse(const char *text, size_t len, enum sg_calibio_mo
 enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode, struct sg_cal_instrument *ins,
                                     struct sg_error *err);
 
+/* Reads a file named on the command line (an event file for 'cal add', a
+ * standalone observations file for 'cal fit') into *text (NUL-terminated,
+ * *len bytes; the caller frees it; NULL on failure). A file that does not
+ * exist or cannot be read is SG_EIO with the path, the system's reason and
+ * what to do, as a missing test record is for 'reduce'; SG_ELIMIT beyond
+ * SG_CALIBIO_FILE_MAX; SG_ENOMEM. */
+enum sg_status sg_calibio_read_input(const char *path, char **text, size_t *len, struct sg_error *err);
+
 /* Writes "<register_dir>/<id>.csv" into buf. false if it does not fit or id
  * is not a valid instrument ID ([A-Za-z0-9._-], 1-63 characters, not
  * starting with '.'). */
 bool sg_calibio_path(const char *register_dir, const char *id, char *buf, size_t size);
 
 /* Loads instrument id from the register folder (file <id>.csv, mode
- * REGISTER). SG_ENOTFOUND if there is no such file; SG_EINVAL if the file's
- * "instrument" row names another ID; parse errors located in that file. */
+ * REGISTER). SG_ENOTFOUND if there is no such file or no such folder;
+ * SG_EINVAL if register_dir is a file rather than a folder (the message says
+ * so) or if the file's "instrument" row names another ID; parse errors
+ * located in that file. */
 enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct sg_cal_instrument *ins,
                                struct sg_error *err);
 
@@ -67,7 +77,8 @@ void sg_cal_register_release(struct sg_cal_register *reg);
  * skipped and reported in diags (may be NULL) as "PATH:LINE:COL: message"
  * (line/col 0); the others are still loaded. Returns SG_OK when every file
  * loaded, the first file's status otherwise (err gets its message);
- * SG_ENOTFOUND / SG_EIO if the folder itself cannot be read. */
+ * SG_ENOTFOUND if the folder does not exist, SG_EINVAL if register_dir is a
+ * file, SG_EIO if the folder cannot be read. */
 enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_register *reg,
                                         struct sg_diag_list *diags, struct sg_error *err);
 
@@ -84,7 +95,8 @@ enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_
  * Returns SG_OK; faults in event_text as SG_EPARSE/SG_EINVAL with
  * err->line/col in event_text; a fault of the register file itself or of a
  * referenced instrument with line/col 0 and the path in the message;
- * SG_ENOTFOUND if the instrument has no file; SG_EIO on a write failure. */
+ * SG_ENOTFOUND if the instrument has no file or the folder does not exist;
+ * SG_EINVAL if register_dir is a file; SG_EIO on a write failure. */
 enum sg_status sg_calibio_append(const char *register_dir, const char *id, const char *event_text, size_t len,
                                  struct sg_error *err);
 
@@ -107,8 +119,9 @@ enum sg_status sg_calibio_append(const char *register_dir, const char *id, const
  * Returns SG_OK; SG_EINVAL if the record names an instrument but has no date,
  * if an instrument has no entry in force on the date (out of service,
  * retired, never calibrated), if it is of another kind or another scale than
- * the record says; SG_ENOTFOUND if the register folder or the instrument's
- * file does not exist. Messages name the instrument and the dates; err
+ * the record says, or if register_dir is a file rather than a folder;
+ * SG_ENOTFOUND if the register folder or the instrument's file does not
+ * exist; SG_EIO if the folder cannot be looked at. Messages name the instrument and the dates; err
  * line/col point at the record's instrument row; faults inside a register
  * file name that file, line and column in the message. */
 enum sg_status sg_calibio_resolve(const char *register_dir, const struct sg_record *rec, struct sg_constants *k,
@@ -125,7 +138,9 @@ enum sg_status sg_calibio_resolve(const char *register_dir, const struct sg_reco
 struct sg_calibio_slot; /* one instrument ID looked up (calibio.c) */
 struct sg_calibio_cache {
     const char *register_dir;       /* as given to init: not copied, it must outlive the cache */
-    int dir_state;                  /* 0 not yet looked at; 1 a folder; -1 not a folder */
+    int dir_state;                  /* 0 not yet looked at; 1 a folder; -1 missing; -2 a file or other
+                                       non-folder; -3 cannot be looked at (dir_errno says why) */
+    int dir_errno;
     struct sg_calibio_slot **slots; /* in order of first use */
     size_t n_slots, cap_slots;
     size_t *index; /* open-addressing table of slot numbers + 1 by ID hash; cap_index a power of two */

@@ -1,6 +1,7 @@
 /* cal.c - `sedgrade cal`: the instrument calibration register (show, fit,
  * add, status, impact). The computations are calib.h's; files calibio.h's. */
 #include <dirent.h>
+#include <errno.h>
 #include <getopt.h>
 #include <math.h>
 #include <stdio.h>
@@ -50,14 +51,16 @@ static const char cal_help[] =
     "                            and fines change when reduced with the other; CSV\n"
     "\n"
     "options:\n"
-    "      --register DIR        the register folder (default ./calibration)\n"
+    "      --calibration DIR     (every command) the register folder (default\n"
+    "                            ./calibration), as for 'sedgrade reduce';\n"
+    "                            --register DIR is the same\n"
     "      --plot FORMAT         (show, fit) also chart each part: svg, png or pdf, written\n"
     "                            to the current folder as ID_DATE.PART.FORMAT\n"
     "  -h, --help                this help\n"
     "\n"
     "exit status: 0 ok; 2 bad input or usage; 3 I/O failure.\n";
 
-enum { OPT_REGISTER = 256, OPT_DATE, OPT_WITHIN, OPT_CSV, OPT_EVENT, OPT_FOLDER, OPT_FROM, OPT_TO, OPT_AREA, OPT_PLOT };
+enum { OPT_CALIBRATION = 256, OPT_DATE, OPT_WITHIN, OPT_CSV, OPT_EVENT, OPT_FOLDER, OPT_FROM, OPT_TO, OPT_AREA, OPT_PLOT };
 
 struct cal_opts {
     const char *register_dir;
@@ -106,7 +109,9 @@ static bool parse_date_opt(const struct cal_opts *o, struct sg_date *d)
 static int parse_opts(int argc, char **argv, struct cal_opts *o)
 {
     static const struct option longopts[] = {
-        {"register", required_argument, NULL, OPT_REGISTER}, {"date", required_argument, NULL, OPT_DATE},
+        {"calibration", required_argument, NULL, OPT_CALIBRATION},
+        {"register", required_argument, NULL, OPT_CALIBRATION}, /* the same: the name the cal command first had */
+        {"date", required_argument, NULL, OPT_DATE},
         {"within", required_argument, NULL, OPT_WITHIN},     {"csv", no_argument, NULL, OPT_CSV},
         {"event", required_argument, NULL, OPT_EVENT},       {"folder", required_argument, NULL, OPT_FOLDER},
         {"from", required_argument, NULL, OPT_FROM},         {"to", required_argument, NULL, OPT_TO},
@@ -121,7 +126,7 @@ static int parse_opts(int argc, char **argv, struct cal_opts *o)
     int c;
     while ((c = getopt_long(argc, argv, ":h", longopts, NULL)) != -1) {
         switch (c) {
-        case OPT_REGISTER: o->register_dir = optarg; break;
+        case OPT_CALIBRATION: o->register_dir = optarg; break;
         case OPT_DATE: o->date_text = optarg; break;
         case OPT_WITHIN:
             if (!sg_cli_parse_size("--within", optarg, 0, CAL_WITHIN_MAX_DAYS, &o->within_days))
@@ -479,9 +484,18 @@ static int cal_fit(const struct cal_opts *o)
         sg_cli_errorf("'cal fit' needs one observations file (see 'sedgrade cal --help')");
         return SG_EXIT_INPUT;
     }
-    struct sg_cal_instrument ins;
+    /* Read as 'reduce' reads a test record: a missing file is an I/O failure (exit 3). */
+    char *text = NULL;
+    size_t len = 0;
     struct sg_error err;
-    const enum sg_status st = sg_calibio_read_file(o->args[0], SG_CALIBIO_STANDALONE, &ins, &err);
+    enum sg_status st = sg_calibio_read_input(o->args[0], &text, &len, &err);
+    if (st != SG_OK) {
+        sg_cli_report(o->args[0], &err);
+        return sg_cli_exit_for(st);
+    }
+    struct sg_cal_instrument ins;
+    st = sg_calibio_parse(text, len, SG_CALIBIO_STANDALONE, &ins, &err);
+    free(text);
     if (st != SG_OK) {
         sg_cli_report(o->args[0], &err);
         sg_cal_instrument_release(&ins);
@@ -509,7 +523,7 @@ static int cal_add(const struct cal_opts *o)
     char *text = NULL;
     size_t len = 0;
     struct sg_error err;
-    enum sg_status st = sg_recordio_read_file(o->event_file, &text, &len, &err);
+    enum sg_status st = sg_calibio_read_input(o->event_file, &text, &len, &err);
     if (st != SG_OK) {
         sg_cli_report(o->event_file, &err);
         return sg_cli_exit_for(st);
@@ -559,13 +573,12 @@ static int cal_status(const struct cal_opts *o)
     struct sg_diag_list diags = {0};
     struct sg_error err;
     enum sg_status st = sg_calibio_load_register(o->register_dir, &reg, &diags, &err);
-    if (st == SG_ENOTFOUND || st == SG_EIO || st == SG_ENOMEM) {
-        if (diags.n == 0) {
-            sg_cli_report(NULL, &err);
-            sg_cal_register_release(&reg);
-            sg_diag_release(&diags);
-            return sg_cli_exit_for(st);
-        }
+    /* A failure with no file reported is the folder's own (missing, a file, unreadable) or memory. */
+    if (st != SG_OK && diags.n == 0) {
+        sg_cli_report(NULL, &err);
+        sg_cal_register_release(&reg);
+        sg_diag_release(&diags);
+        return sg_cli_exit_for(st);
     }
     for (size_t i = 0; i < diags.n; i++)
         sg_cli_report(NULL, &diags.items[i]);
@@ -752,8 +765,15 @@ static int cal_impact(const struct cal_opts *o)
     const char *to_entry = strchr(to_label, '@') + 1;
     struct file_list files = {0};
     struct stat sb;
-    if (stat(o->folder, &sb) != 0 || !S_ISDIR(sb.st_mode)) {
-        sg_cli_errorf("'%s' is not a folder (give --folder DIR with the test records)", o->folder);
+    /* A folder that cannot be opened is an I/O failure, as a missing record is for 'reduce'. */
+    if (stat(o->folder, &sb) != 0) {
+        sg_cli_errorf("%s: cannot open '%s': %s (check the path and its permissions)", o->folder, o->folder,
+                      strerror(errno));
+        return SG_EXIT_IO;
+    }
+    if (!S_ISDIR(sb.st_mode)) {
+        sg_cli_errorf("--folder '%s' is a file, not a folder (give --folder DIR, the folder of the test records)",
+                      o->folder);
         return SG_EXIT_INPUT;
     }
     if (!walk(o->folder, &files, 0)) {

@@ -53,6 +53,84 @@ static bool buf_str(struct buf *b, const char *s)
     return buf_add(b, s, strlen(s));
 }
 
+/* ---- text: UTF-8 checks and messages that show only text ------------------------- */
+
+/* Length of the valid UTF-8 sequence at s[0..n) (Unicode 15, table 3-7), 0 if
+ * invalid. s[0] >= 0x80. */
+static size_t utf8_len(const unsigned char *s, size_t n)
+{
+    const unsigned char b = s[0];
+    size_t len;
+    unsigned char lo = 0x80, hi = 0xBF;
+    if (b >= 0xC2 && b <= 0xDF) {
+        len = 2;
+    } else if (b >= 0xE0 && b <= 0xEF) {
+        len = 3;
+        if (b == 0xE0)
+            lo = 0xA0; /* no overlong forms */
+        else if (b == 0xED)
+            hi = 0x9F; /* no surrogates */
+    } else if (b >= 0xF0 && b <= 0xF4) {
+        len = 4;
+        if (b == 0xF0)
+            lo = 0x90;
+        else if (b == 0xF4)
+            hi = 0x8F; /* nothing above U+10FFFF */
+    } else {
+        return 0;
+    }
+    if (n < len || s[1] < lo || s[1] > hi)
+        return 0;
+    for (size_t i = 2; i < len; i++)
+        if (s[i] < 0x80 || s[i] > 0xBF)
+            return 0;
+    return len;
+}
+
+/* A control character (C0, DEL, or C1 U+0080-U+009F) at s[0..n). */
+static bool is_control(const unsigned char *s, size_t n)
+{
+    return s[0] < 0x20 || s[0] == 0x7F || (n >= 2 && s[0] == 0xC2 && s[1] < 0xA0);
+}
+
+/* Rewrites err's message so that it holds only printable text: a byte that is
+ * a control character or not part of valid UTF-8 (a file path given on the
+ * command line, an instrument ID, a UTF-8 character cut by a length limit)
+ * is shown as \xNN. Applied to every message that leaves this module. */
+static void escape_message(struct sg_error *err)
+{
+    if (err == NULL)
+        return;
+    const unsigned char *m = (const unsigned char *)err->msg;
+    const size_t n = strnlen(err->msg, sizeof err->msg);
+    size_t i = 0;
+    while (i < n && m[i] >= 0x20 && m[i] < 0x7F)
+        i++;
+    if (i == n)
+        return; /* printable ASCII, nearly every message */
+    char out[sizeof err->msg];
+    const size_t room = sizeof out - 4; /* "..." and the NUL */
+    size_t o = 0;
+    for (i = 0; i < n;) {
+        const size_t len = m[i] < 0x80 ? 1 : utf8_len(m + i, n - i);
+        const bool plain = len > 0 && !is_control(m + i, n - i);
+        const size_t need = plain ? len : 4;
+        if (o + need > room) {
+            memcpy(out + o, "...", 3);
+            o += 3;
+            break;
+        }
+        if (plain)
+            memcpy(out + o, m + i, len);
+        else
+            (void)snprintf(out + o, 5, "\\x%02X", m[i]);
+        o += need;
+        i += plain ? len : 1;
+    }
+    out[o] = '\0';
+    memcpy(err->msg, out, o + 1);
+}
+
 /* ---- rows: CSV lines split into located fields ---------------------------------- */
 
 struct field {
@@ -189,12 +267,45 @@ static char detect_delim(const char *s, size_t n)
     return 0;
 }
 
+/* Refuses a line that is not UTF-8 text (a byte that is not part of valid
+ * UTF-8, or a control character other than tab), located at that byte and
+ * naming it by its value: the byte itself is never copied into a message. */
+static enum sg_status check_text(const char *line_text, size_t n, unsigned line, struct sg_error *err)
+{
+    const unsigned char *s = (const unsigned char *)line_text;
+    for (size_t i = 0; i < n;) {
+        if (s[i] >= 0x20 && s[i] < 0x7F) {
+            i++;
+            continue;
+        }
+        if (s[i] == '\t') {
+            i++;
+            continue;
+        }
+        if (s[i] < 0x80)
+            return sg_error_set(err, SG_EPARSE, line, (unsigned)i + 1,
+                                "control character 0x%02X in the line (the file is not plain text; save it as CSV)",
+                                s[i]);
+        const size_t len = utf8_len(s + i, n - i);
+        if (len == 0)
+            return sg_error_set(err, SG_EPARSE, line, (unsigned)i + 1,
+                                "byte 0x%02X is not UTF-8 text (save the file as UTF-8; a file written in Latin-1 "
+                                "or Windows-1252 must be converted)",
+                                s[i]);
+        i += len;
+    }
+    return SG_OK;
+}
+
 static enum sg_status split_rows(const char *text, size_t len, struct rowset *rs, struct sg_error *err)
 {
     memset(rs, 0, sizeof *rs);
     if (len > SG_CALIBIO_FILE_MAX)
         return sg_error_set(err, SG_ELIMIT, 0, 0, "file of %zu bytes is larger than the %u-byte limit", len,
                             SG_CALIBIO_FILE_MAX);
+    if (len >= 2 && (((unsigned char)text[0] == 0xFF && (unsigned char)text[1] == 0xFE) ||
+                     ((unsigned char)text[0] == 0xFE && (unsigned char)text[1] == 0xFF)))
+        return sg_error_set(err, SG_EPARSE, 1, 1, "the file is UTF-16 text, not UTF-8 (save the file as UTF-8)");
     size_t at = 0;
     if (len >= 3 && (unsigned char)text[0] == 0xEF && (unsigned char)text[1] == 0xBB &&
         (unsigned char)text[2] == 0xBF)
@@ -216,6 +327,9 @@ static enum sg_status split_rows(const char *text, size_t len, struct rowset *rs
         if (memchr(s, '\r', n) != NULL)
             return sg_error_set(err, SG_EPARSE, line, (unsigned)((const char *)memchr(s, '\r', n) - s) + 1,
                                 "stray carriage return inside the line (save the file with LF or CRLF line ends)");
+        const enum sg_status tst = check_text(s, n, line, err);
+        if (tst != SG_OK)
+            return tst;
         size_t k = 0;
         while (k < n && (s[k] == ' ' || s[k] == '\t'))
             k++;
@@ -804,7 +918,10 @@ static enum sg_status parse_rows(const char *text, size_t len, enum sg_calibio_m
 enum sg_status sg_calibio_parse(const char *text, size_t len, enum sg_calibio_mode mode,
                                 struct sg_cal_instrument *ins, struct sg_error *err)
 {
-    return parse_rows(text, len, mode, ins, NULL, err);
+    const enum sg_status st = parse_rows(text, len, mode, ins, NULL, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
 }
 
 /* ---- files --------------------------------------------------------------------------- */
@@ -854,8 +971,37 @@ static enum sg_status slurp(const char *path, char **out, size_t *len, struct sg
     return st;
 }
 
-enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode, struct sg_cal_instrument *ins,
-                                    struct sg_error *err)
+static enum sg_status read_input(const char *path, char **text, size_t *len, struct sg_error *err)
+{
+    *text = NULL;
+    *len = 0;
+    const int fd = open(path, O_RDONLY | O_CLOEXEC);
+    if (fd < 0) {
+        const int e = errno;
+        return sg_error_set(err, SG_EIO, 0, 0, "cannot open '%s': %s (check the path and its permissions)", path,
+                            strerror(e));
+    }
+    struct stat sb;
+    enum sg_status st = SG_OK;
+    if (fstat(fd, &sb) == 0 && S_ISDIR(sb.st_mode))
+        st = sg_error_set(err, SG_EIO, 0, 0, "cannot read '%s': it is a folder (give a file of register rows)",
+                          path);
+    else
+        st = slurp_fd(fd, path, text, len, err);
+    (void)close(fd);
+    return st;
+}
+
+enum sg_status sg_calibio_read_input(const char *path, char **text, size_t *len, struct sg_error *err)
+{
+    const enum sg_status st = read_input(path, text, len, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
+}
+
+static enum sg_status read_register_file(const char *path, enum sg_calibio_mode mode,
+                                         struct sg_cal_instrument *ins, struct sg_error *err)
 {
     char *text = NULL;
     size_t len = 0;
@@ -868,12 +1014,77 @@ enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode,
     return st;
 }
 
+enum sg_status sg_calibio_read_file(const char *path, enum sg_calibio_mode mode, struct sg_cal_instrument *ins,
+                                    struct sg_error *err)
+{
+    const enum sg_status st = read_register_file(path, mode, ins, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
+}
+
 bool sg_calibio_path(const char *register_dir, const char *id, char *buf, size_t size)
 {
     if (!valid_id(id))
         return false;
     const int n = snprintf(buf, size, "%s/%s.csv", register_dir, id);
     return n > 0 && (size_t)n < size;
+}
+
+/* ---- the register folder ------------------------------------------------------------- */
+
+/* What a register path names: a folder, nothing, something else (a file), or
+ * a path that cannot be looked at (errnum says why). */
+enum dir_kind { DIR_FOLDER = 1, DIR_MISSING = -1, DIR_NOT_FOLDER = -2, DIR_UNREADABLE = -3 };
+
+static enum dir_kind dir_kind(const char *dir, int *errnum)
+{
+    struct stat sb;
+    *errnum = 0;
+    if (dir == NULL || dir[0] == '\0')
+        return DIR_MISSING;
+    if (stat(dir, &sb) == 0)
+        return S_ISDIR(sb.st_mode) ? DIR_FOLDER : DIR_NOT_FOLDER;
+    *errnum = errno;
+    /* ENOTDIR: a component of the path is a file, so the folder cannot exist */
+    return *errnum == ENOENT || *errnum == ENOTDIR ? DIR_MISSING : DIR_UNREADABLE;
+}
+
+/* The message for a register path that is not a usable folder: SG_ENOTFOUND
+ * (missing), SG_EINVAL (a file: a usage mistake, not a missing folder),
+ * SG_EIO (cannot be looked at). why (may be "") goes after the problem and
+ * what_to_do inside the closing parentheses. */
+static enum sg_status dir_problem(const char *dir, enum dir_kind kind, int errnum, unsigned line, unsigned col,
+                                  const char *why, const char *what_to_do, struct sg_error *err)
+{
+    if (dir == NULL)
+        dir = "";
+    switch (kind) {
+    case DIR_NOT_FOLDER:
+        return sg_error_set(err, SG_EINVAL, line, col,
+                            "the calibration register '%s' is a file, not a folder%s (give --calibration DIR, the "
+                            "folder that holds the instrument files <ID>.csv%s)",
+                            dir, why, what_to_do);
+    case DIR_UNREADABLE:
+        return sg_error_set(err, SG_EIO, line, col,
+                            "cannot open the calibration register folder '%s': %s%s (check the path and its "
+                            "permissions%s)",
+                            dir, strerror(errnum), why, what_to_do);
+    case DIR_MISSING:
+    case DIR_FOLDER: break;
+    }
+    return sg_error_set(err, SG_ENOTFOUND, line, col,
+                        "the calibration register folder '%s' does not exist%s (give --calibration DIR, the folder "
+                        "that holds the instrument files <ID>.csv%s)",
+                        dir, why, what_to_do);
+}
+
+/* SG_OK when register_dir is a folder, else dir_problem's message. */
+static enum sg_status check_register_dir(const char *register_dir, struct sg_error *err)
+{
+    int errnum;
+    const enum dir_kind k = dir_kind(register_dir, &errnum);
+    return k == DIR_FOLDER ? SG_OK : dir_problem(register_dir, k, errnum, 0, 0, "", "", err);
 }
 
 /* Checks the file's instrument row names the ID its file name gives. */
@@ -888,8 +1099,8 @@ static enum sg_status check_id(const struct sg_cal_instrument *ins, const char *
     return SG_OK;
 }
 
-enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct sg_cal_instrument *ins,
-                               struct sg_error *err)
+static enum sg_status load_instrument(const char *register_dir, const char *id, struct sg_cal_instrument *ins,
+                                      struct sg_error *err)
 {
     char path[4096];
     sg_cal_instrument_init(ins);
@@ -897,6 +1108,13 @@ enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct 
         return sg_error_set(err, SG_EINVAL, 0, 0,
                             "'%.64s' is not an instrument ID (1-63 characters of A-Z a-z 0-9 . _ -)", id);
     enum sg_status st = sg_calibio_read_file(path, SG_CALIBIO_REGISTER, ins, err);
+    /* The file could not be opened: say so of the folder when the folder is at fault
+     * (looked at only then, so a load that works costs no extra call). */
+    if (st == SG_ENOTFOUND || st == SG_EIO) {
+        const enum sg_status dst = check_register_dir(register_dir, err);
+        if (dst != SG_OK)
+            return dst;
+    }
     if (st == SG_ENOTFOUND)
         return sg_error_set(err, SG_ENOTFOUND, 0, 0,
                             "instrument '%s' is not in the calibration register '%s' (no file %s; check the ID, "
@@ -904,6 +1122,15 @@ enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct 
                             id, register_dir, path);
     if (st == SG_OK)
         st = check_id(ins, id, path, err);
+    return st;
+}
+
+enum sg_status sg_calibio_load(const char *register_dir, const char *id, struct sg_cal_instrument *ins,
+                               struct sg_error *err)
+{
+    const enum sg_status st = load_instrument(register_dir, id, ins, err);
+    if (st != SG_OK)
+        escape_message(err);
     return st;
 }
 
@@ -927,16 +1154,20 @@ static int cmp_str(const void *a, const void *b)
     return strcmp(*(char *const *)a, *(char *const *)b);
 }
 
-enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_register *reg,
-                                        struct sg_diag_list *diags, struct sg_error *err)
+static enum sg_status load_folder(const char *register_dir, struct sg_cal_register *reg, struct sg_diag_list *diags,
+                                  struct sg_error *err)
 {
     sg_cal_register_init(reg);
     DIR *dir = opendir(register_dir);
     if (dir == NULL) {
         const int e = errno;
-        return sg_error_set(err, e == ENOENT ? SG_ENOTFOUND : SG_EIO, 0, 0,
-                            "cannot open the calibration register '%s': %s (give --register DIR)", register_dir,
-                            strerror(e));
+        int errnum;
+        enum dir_kind k = dir_kind(register_dir, &errnum);
+        if (k == DIR_FOLDER) { /* a folder that cannot be listed */
+            k = DIR_UNREADABLE;
+            errnum = e;
+        }
+        return dir_problem(register_dir, k, errnum, 0, 0, "", "", err);
     }
     char **names = NULL;
     size_t n = 0, cap = 0;
@@ -1006,6 +1237,7 @@ enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_
                 *err = d;
             break;
         }
+        escape_message(&d);
         (void)sg_diag_add(diags, &d);
         if (first == SG_OK) {
             first = fst;
@@ -1017,6 +1249,15 @@ enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_
         free(names[i]);
     free(names);
     return st != SG_OK ? st : first;
+}
+
+enum sg_status sg_calibio_load_register(const char *register_dir, struct sg_cal_register *reg,
+                                        struct sg_diag_list *diags, struct sg_error *err)
+{
+    const enum sg_status st = load_folder(register_dir, reg, diags, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
 }
 
 /* ---- append ------------------------------------------------------------------------------ */
@@ -1085,6 +1326,62 @@ static enum sg_status relabel(struct sg_error *err, enum sg_status st, const cha
     return st;
 }
 
+/* true when a and b are the same number or both not given (NaN). */
+static bool same_value(double a, double b)
+{
+    return (isnan(a) && isnan(b)) || a == b; /* exact on purpose: both were read from text the same way */
+}
+
+/* true when event ev repeats the recorded event old: the same date and type,
+ * the same observations (kinds and values, in the same order) with the same
+ * gravimetric conditions, the same new location (relocation), and no note
+ * that old lacks. A note of its own is how a genuine repeat is recorded. */
+static bool repeats(const struct sg_cal_event *old, const struct sg_cal_event *ev)
+{
+    if (sg_date_days(old->date) != sg_date_days(ev->date) || old->type != ev->type || old->n_obs != ev->n_obs ||
+        strcmp(old->location, ev->location) != 0 || !same_value(old->water_temp_c, ev->water_temp_c) ||
+        !same_value(old->air_density_g_ml, ev->air_density_g_ml) ||
+        !same_value(old->weights_density_g_ml, ev->weights_density_g_ml) ||
+        !same_value(old->expansion_per_k, ev->expansion_per_k))
+        return false;
+    for (size_t i = 0; i < ev->n_obs; i++)
+        if (old->obs[i].kind != ev->obs[i].kind || !same_value(old->obs[i].x, ev->obs[i].x) ||
+            !same_value(old->obs[i].y, ev->obs[i].y))
+            return false;
+    for (size_t i = 0; i < ev->n_notes; i++) {
+        bool found = false;
+        for (size_t j = 0; j < old->n_notes && !found; j++)
+            found = strcmp(old->notes[j], ev->notes[i]) == 0;
+        if (!found)
+            return false;
+    }
+    return true;
+}
+
+/* Refuses a new event (index first_new on) that repeats one recorded before
+ * it (a command run twice would otherwise append the same event twice to
+ * an append-only history). Located at the new event's row. */
+static enum sg_status refuse_repeats(const struct sg_cal_instrument *ins, size_t first_new, const char *path,
+                                     struct sg_error *err)
+{
+    for (size_t i = first_new; i < ins->n_events; i++) {
+        const struct sg_cal_event *ev = &ins->events[i];
+        for (size_t j = 0; j < i; j++) {
+            if (!repeats(&ins->events[j], ev))
+                continue;
+            char date[11];
+            sg_date_format(ev->date, date);
+            return sg_error_set(err, SG_EINVAL, ev->line, 1,
+                                "this %s of %s is already in the register (%.200s line %u: the same date, type "
+                                "and observations), so it is not added again (history is append-only; to record "
+                                "a genuine repeat, give the new event a note row saying why)",
+                                sg_cal_event_type_name(ev->type), date, j < first_new ? path : "this file",
+                                ins->events[j].line);
+        }
+    }
+    return SG_OK;
+}
+
 static void sync_dir(const char *dir)
 {
     const int fd = open(dir, O_RDONLY | O_DIRECTORY);
@@ -1134,7 +1431,7 @@ static enum sg_status append_locked(const char *register_dir, const char *id, co
         if ((st = sg_cal_instrument_add_event(&ins, &add->events[i], err)) != SG_OK)
             goto cleanup;
     add->n_events = 0;
-    if ((st = sg_cal_validate(&ins, err)) != SG_OK)
+    if ((st = refuse_repeats(&ins, first_new, path, err)) != SG_OK || (st = sg_cal_validate(&ins, err)) != SG_OK)
         goto cleanup;
     for (size_t i = first_new; i < ins.n_events; i++) {
         const struct sg_cal_event *ev = &ins.events[i];
@@ -1210,8 +1507,8 @@ cleanup:
     return st;
 }
 
-enum sg_status sg_calibio_append(const char *register_dir, const char *id, const char *event_text, size_t len,
-                                 struct sg_error *err)
+static enum sg_status append_events(const char *register_dir, const char *id, const char *event_text, size_t len,
+                                    struct sg_error *err)
 {
     char path[4096], lock_path[4096];
     if (!sg_calibio_path(register_dir, id, path, sizeof path))
@@ -1220,11 +1517,14 @@ enum sg_status sg_calibio_append(const char *register_dir, const char *id, const
     const int n = snprintf(lock_path, sizeof lock_path, "%s/%s", register_dir, SG_CALIBIO_LOCK_NAME);
     if (n < 0 || (size_t)n >= sizeof lock_path)
         return sg_error_set(err, SG_EIO, 0, 0, "register path '%s' is too long", register_dir);
+    enum sg_status st = check_register_dir(register_dir, err);
+    if (st != SG_OK)
+        return st;
 
     struct sg_cal_instrument add;
     struct rowset rows;
     memset(&rows, 0, sizeof rows);
-    enum sg_status st = parse_rows(event_text, len, SG_CALIBIO_EVENTS, &add, &rows, err);
+    st = parse_rows(event_text, len, SG_CALIBIO_EVENTS, &add, &rows, err);
     if (st != SG_OK) {
         sg_cal_instrument_release(&add);
         return st;
@@ -1249,6 +1549,15 @@ enum sg_status sg_calibio_append(const char *register_dir, const char *id, const
     }
     sg_cal_instrument_release(&add);
     rowset_release(&rows);
+    return st;
+}
+
+enum sg_status sg_calibio_append(const char *register_dir, const char *id, const char *event_text, size_t len,
+                                 struct sg_error *err)
+{
+    const enum sg_status st = append_events(register_dir, id, event_text, len, err);
+    if (st != SG_OK)
+        escape_message(err);
     return st;
 }
 
@@ -1856,9 +2165,9 @@ static bool uses_inline(const struct sg_record *rec, const struct sg_constants *
     return false;
 }
 
-enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
-                                              const char *override_id, const char *override_entry,
-                                              struct sg_constants *k, struct sg_error *err)
+static enum sg_status resolve_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
+                                     const char *override_id, const char *override_entry, struct sg_constants *k,
+                                     struct sg_error *err)
 {
     sg_constants_from_record(rec, k);
     sg_error_clear(err);
@@ -1877,16 +2186,12 @@ enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, co
                             "the record names register instruments but no test date (give test,date so the "
                             "calibration in force can be chosen)");
     const char *register_dir = cache->register_dir;
-    if (cache->dir_state == 0) {
-        struct stat sb;
-        cache->dir_state = register_dir != NULL && stat(register_dir, &sb) == 0 && S_ISDIR(sb.st_mode) ? 1 : -1;
-    }
-    if (cache->dir_state < 0)
-        return sg_error_set(err, SG_ENOTFOUND, line, col,
-                            "the calibration register folder '%s' does not exist, and the record names register "
-                            "instruments (give --calibration DIR, or drop the instrument IDs and give the "
-                            "constants inline)",
-                            register_dir ? register_dir : "");
+    if (cache->dir_state == 0)
+        cache->dir_state = (int)dir_kind(register_dir, &cache->dir_errno);
+    if (cache->dir_state != DIR_FOLDER)
+        return dir_problem(register_dir, (enum dir_kind)cache->dir_state, cache->dir_errno, line, col,
+                           ", and the record names register instruments",
+                           ", or drop the instrument IDs and give the constants inline", err);
     enum sg_status st = SG_OK;
     const struct sg_cal_result *res = NULL;
     if (rec->hydrometer[0])
@@ -1919,6 +2224,16 @@ enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, co
     if (rv.n_used > 0)
         join_used(&rv, k);
     return SG_OK;
+}
+
+enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
+                                              const char *override_id, const char *override_entry,
+                                              struct sg_constants *k, struct sg_error *err)
+{
+    const enum sg_status st = resolve_cached(cache, rec, override_id, override_entry, k, err);
+    if (st != SG_OK)
+        escape_message(err);
+    return st;
 }
 
 enum sg_status sg_calibio_resolve_cached(struct sg_calibio_cache *cache, const struct sg_record *rec,
