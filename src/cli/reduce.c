@@ -147,11 +147,112 @@ static void path_list_release(struct path_list *l)
     l->n = l->cap = 0;
 }
 
-/* A folder entry while walking: its path and whether the listing named it
- * a regular file. */
+/* A file or folder by device and inode: what every path to it shares
+ * (symbolic links, hard links, "dir/x.csv" and "./dir/x.csv"). */
+struct node_id {
+    dev_t dev;
+    ino_t ino;
+};
+
+static struct node_id node_of(const struct stat *st)
+{
+    return (struct node_id){st->st_dev, st->st_ino};
+}
+
+/* The files and folders already listed: an open-addressing hash set,
+ * at most half full. */
+struct node_set {
+    struct node_id *slots;
+    bool *used;
+    size_t n, n_slots; /* n_slots a power of two */
+};
+
+static size_t node_hash(struct node_id id)
+{
+    /* splitmix64's finaliser (Steele, Lea, Flood 2014; public domain) */
+    uint64_t h = (uint64_t)id.ino ^ ((uint64_t)id.dev * 0x9e3779b97f4a7c15u);
+    h = (h ^ (h >> 30)) * 0xbf58476d1ce4e5b9u;
+    h = (h ^ (h >> 27)) * 0x94d049bb133111ebu;
+    return (size_t)(h ^ (h >> 31));
+}
+
+static size_t node_slot(const struct node_set *s, struct node_id id)
+{
+    const size_t mask = s->n_slots - 1;
+    size_t i = node_hash(id) & mask;
+    while (s->used[i] && !(s->slots[i].dev == id.dev && s->slots[i].ino == id.ino))
+        i = (i + 1) & mask;
+    return i;
+}
+
+/* Adds id; *added tells whether it was new. false when out of memory. */
+static bool node_set_add(struct node_set *s, struct node_id id, bool *added)
+{
+    if (2 * (s->n + 1) > s->n_slots) {
+        const size_t n_slots = s->n_slots ? 2 * s->n_slots : 256;
+        struct node_set grown = {calloc(n_slots, sizeof *grown.slots), calloc(n_slots, sizeof *grown.used), 0,
+                                 n_slots};
+        if (grown.slots == NULL || grown.used == NULL) {
+            free(grown.slots);
+            free(grown.used);
+            return false;
+        }
+        for (size_t i = 0; i < s->n_slots; i++)
+            if (s->used[i]) {
+                const size_t j = node_slot(&grown, s->slots[i]);
+                grown.slots[j] = s->slots[i];
+                grown.used[j] = true;
+            }
+        grown.n = s->n;
+        free(s->slots);
+        free(s->used);
+        *s = grown;
+    }
+    const size_t i = node_slot(s, id);
+    *added = !s->used[i];
+    if (*added) {
+        s->slots[i] = id;
+        s->used[i] = true;
+        s->n++;
+    }
+    return true;
+}
+
+static void node_set_release(struct node_set *s)
+{
+    free(s->slots);
+    free(s->used);
+    *s = (struct node_set){0};
+}
+
+/* What a walk over the command line's paths gathers. */
+struct collection {
+    struct path_list files; /* each record file once, in argument and then sorted folder order */
+    struct node_set seen;   /* folders walked and files listed */
+    bool has_skip;          /* skip: the output folder, never read as input */
+    struct node_id skip;
+    size_t problems;        /* unreadable folders or files, each reported */
+    size_t repeats;         /* paths that led to a file or folder already listed */
+};
+
+/* Lists path (a file whose stat is st, or NULL when it cannot be read: the
+ * reader then reports why) unless the same file is listed already. */
+static bool add_file(struct collection *c, const char *path, const struct stat *st)
+{
+    bool added = true;
+    if (st != NULL && !node_set_add(&c->seen, node_of(st), &added))
+        return false;
+    if (!added) {
+        c->repeats++;
+        return true;
+    }
+    return path_list_add(&c->files, path);
+}
+
+/* A folder entry while walking: its path and what stat found. */
 struct entry {
     char *path;
-    bool regular;
+    struct stat st;
 };
 
 static int cmp_entry(const void *a, const void *b)
@@ -165,22 +266,34 @@ static bool has_csv_suffix(const char *name)
     return n > 4 && strcmp(name + n - 4, ".csv") == 0;
 }
 
-/* Walks dir for *.csv (sorted, recursive; hidden entries and skip_dir are
- * skipped). Unreadable folders are reported and counted in *problems. */
-static bool walk(const char *dir, const char *skip_real, struct path_list *out, int depth, size_t *problems)
+#define MAX_FOLDER_DEPTH 32
+
+/* Walks dir (whose stat is dir_st) for *.csv, sorted and recursive; hidden
+ * entries and the output folder are skipped. A folder reached again (a
+ * symbolic link to a parent or to itself, or the same folder named twice)
+ * is not walked again, so every file is listed once and a loop ends.
+ * Unreadable folders are reported and counted. false when out of memory. */
+static bool walk(struct collection *c, const char *dir, const struct stat *dir_st, int depth)
 {
-    char real[PATH_MAX];
-    if (skip_real != NULL && realpath(dir, real) != NULL && strcmp(real, skip_real) == 0)
+    const struct node_id id = node_of(dir_st);
+    if (c->has_skip && id.dev == c->skip.dev && id.ino == c->skip.ino)
         return true;
-    if (depth > 32) {
-        sg_cli_errorf("%s: folders nested too deeply (more than 32 levels); skipped", dir);
-        (*problems)++;
+    bool added = false;
+    if (!node_set_add(&c->seen, id, &added))
+        return false;
+    if (!added) {
+        c->repeats++;
+        return true;
+    }
+    if (depth > MAX_FOLDER_DEPTH) {
+        sg_cli_errorf("%s: folders nested too deeply (more than %d levels); skipped", dir, MAX_FOLDER_DEPTH);
+        c->problems++;
         return true;
     }
     DIR *d = opendir(dir);
     if (d == NULL) {
         sg_cli_errorf("%s: cannot read folder: %s", dir, strerror(errno));
-        (*problems)++;
+        c->problems++;
         return true;
     }
     struct entry *here = NULL;
@@ -190,16 +303,26 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
     while (ok && (e = readdir(d)) != NULL) {
         if (e->d_name[0] == '.')
             continue;
-        bool regular = false;
 #ifdef DT_REG
-        /* a regular file the listing already names as one needs no stat
-         * (an archive folder holds thousands); anything else is checked */
-        regular = e->d_type == DT_REG;
-        if (regular && !has_csv_suffix(e->d_name))
+        /* a regular file the listing names as one is taken only as *.csv
+         * (an archive folder holds thousands of other files) */
+        if (e->d_type == DT_REG && !has_csv_suffix(e->d_name))
             continue;
 #endif
         char path[PATH_MAX];
         if (snprintf(path, sizeof path, "%s/%s", dir, e->d_name) >= (int)sizeof path)
+            continue;
+        /* the device and inode say whether this file or folder is listed
+         * already; fstatat looks up one name in the open folder */
+        struct stat st;
+        if (fstatat(dirfd(d), e->d_name, &st, 0) != 0) {
+            if (has_csv_suffix(e->d_name)) {
+                sg_cli_errorf("%s: cannot read: %s", path, strerror(errno));
+                c->problems++;
+            }
+            continue;
+        }
+        if (!S_ISDIR(st.st_mode) && !has_csv_suffix(e->d_name))
             continue;
         if (n_here == cap_here) {
             const size_t cap = cap_here ? 2 * cap_here : 64;
@@ -212,7 +335,7 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
             cap_here = cap;
         }
         here[n_here].path = strdup(path);
-        here[n_here].regular = regular;
+        here[n_here].st = st;
         ok = here[n_here].path != NULL;
         n_here += ok;
     }
@@ -220,23 +343,10 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
     if (n_here > 0)
         qsort(here, n_here, sizeof *here, cmp_entry);
     for (size_t i = 0; ok && i < n_here; i++) {
-        const char *path = here[i].path;
-        if (here[i].regular) {
-            ok = path_list_add(out, path);
-            continue;
-        }
-        struct stat st;
-        if (stat(path, &st) != 0) {
-            if (has_csv_suffix(path)) {
-                sg_cli_errorf("%s: cannot read: %s", path, strerror(errno));
-                (*problems)++;
-            }
-            continue;
-        }
-        if (S_ISDIR(st.st_mode))
-            ok = walk(path, skip_real, out, depth + 1, problems);
-        else if (has_csv_suffix(path))
-            ok = path_list_add(out, path);
+        if (S_ISDIR(here[i].st.st_mode))
+            ok = walk(c, here[i].path, &here[i].st, depth + 1);
+        else
+            ok = add_file(c, here[i].path, &here[i].st);
     }
     for (size_t i = 0; i < n_here; i++)
         free(here[i].path);
@@ -244,20 +354,43 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
     return ok;
 }
 
-static bool collect(char **args, int n, const char *skip_dir, struct path_list *out, size_t *problems)
+/* Lists the record files of args (files, or folders walked), each file
+ * once however many paths lead to it; skip_dir (may be NULL) is never
+ * walked. false when out of memory. */
+static bool collect(char **args, int n, const char *skip_dir, struct collection *c)
 {
-    char skip_real[PATH_MAX];
-    const char *skip = skip_dir != NULL && realpath(skip_dir, skip_real) != NULL ? skip_real : NULL;
+    struct stat st;
+    if (skip_dir != NULL && stat(skip_dir, &st) == 0 && S_ISDIR(st.st_mode)) {
+        c->has_skip = true;
+        c->skip = node_of(&st);
+    }
     for (int i = 0; i < n; i++) {
-        struct stat st;
-        if (stat(args[i], &st) == 0 && S_ISDIR(st.st_mode)) {
-            if (!walk(args[i], skip, out, 0, problems))
-                return false;
-        } else if (!path_list_add(out, args[i])) {
+        bool ok;
+        if (stat(args[i], &st) != 0)
+            ok = add_file(c, args[i], NULL);
+        else if (S_ISDIR(st.st_mode))
+            ok = walk(c, args[i], &st, 0);
+        else
+            ok = add_file(c, args[i], &st);
+        if (!ok)
             return false;
-        }
     }
     return true;
+}
+
+/* One short note when some paths were dropped as repeats. */
+static void note_repeats(const struct collection *c)
+{
+    if (c->repeats > 0)
+        sg_cli_errorf("note: %zu path%s led to a record or folder already listed (a repeated name, a link "
+                      "or a folder loop); each record is read once",
+                      c->repeats, c->repeats == 1 ? "" : "s");
+}
+
+static void collection_release(struct collection *c)
+{
+    path_list_release(&c->files);
+    node_set_release(&c->seen);
 }
 
 /* ---- batch bookkeeping ---- */
@@ -1112,22 +1245,25 @@ int sg_cli_reduce(int argc, char **argv)
             return rc;
     }
 
-    struct path_list files = {0};
-    size_t walk_problems = 0;
-    if (!collect(argv + optind, argc - optind, cfg.out_dir, &files, &walk_problems)) {
+    struct collection input = {0};
+    if (!collect(argv + optind, argc - optind, cfg.out_dir, &input)) {
         sg_cli_errorf("out of memory listing the test records");
-        path_list_release(&files);
+        collection_release(&input);
         return SG_EXIT_IO;
     }
+    if (!cfg.quiet)
+        note_repeats(&input);
+    const struct path_list files = input.files;
+    const size_t walk_problems = input.problems;
     if (files.n == 0) {
         sg_cli_errorf("no test records (*.csv) found in the given paths");
-        path_list_release(&files);
+        collection_release(&input);
         return SG_EXIT_INPUT;
     }
     struct sg_error err;
     if (sg_mkdir_p(cfg.out_dir, &err) != SG_OK) {
         sg_cli_report(NULL, &err);
-        path_list_release(&files);
+        collection_release(&input);
         return SG_EXIT_IO;
     }
     if (cfg.plot[SG_PLOT_PNG] || cfg.plot[SG_PLOT_SVG] || cfg.plot[SG_PLOT_PDF] || cfg.report) {
@@ -1144,7 +1280,7 @@ int sg_cli_reduce(int argc, char **argv)
     b.jobs = calloc(files.n, sizeof *b.jobs);
     if (b.jobs == NULL) {
         sg_cli_errorf("out of memory for %zu test records", files.n);
-        path_list_release(&files);
+        collection_release(&input);
         return SG_EXIT_IO;
     }
     for (size_t i = 0; i < files.n; i++)
@@ -1213,7 +1349,7 @@ int sg_cli_reduce(int argc, char **argv)
     pthread_mutex_destroy(&b.schemas.lock);
     pthread_mutex_destroy(&b.ids.lock);
     pthread_mutex_destroy(&b.stderr_lock);
-    path_list_release(&files);
+    collection_release(&input);
     return rc;
 }
 
@@ -1253,13 +1389,15 @@ int sg_cli_check(int argc, char **argv)
         sg_cli_errorf("no test records given (usage: sedgrade check FILE|DIR...)");
         return SG_EXIT_INPUT;
     }
-    struct path_list files = {0};
-    size_t problems = 0;
-    if (!collect(argv + optind, argc - optind, NULL, &files, &problems)) {
-        path_list_release(&files);
+    struct collection input = {0};
+    if (!collect(argv + optind, argc - optind, NULL, &input)) {
+        sg_cli_errorf("out of memory listing the test records");
+        collection_release(&input);
         return SG_EXIT_IO;
     }
-    int rc = problems ? SG_EXIT_INPUT : SG_EXIT_OK;
+    note_repeats(&input);
+    const struct path_list files = input.files;
+    int rc = input.problems ? SG_EXIT_INPUT : SG_EXIT_OK;
     struct sg_calibio_cache cal;
     sg_calibio_cache_init(&cal, register_dir);
     for (size_t i = 0; i < files.n; i++) {
@@ -1292,6 +1430,6 @@ int sg_cli_check(int argc, char **argv)
         sg_record_release(&rec);
     }
     sg_calibio_cache_release(&cal);
-    path_list_release(&files);
+    collection_release(&input);
     return rc;
 }
