@@ -496,6 +496,14 @@ static bool id_claim(struct id_set *s, const char *id, const char *path, const c
     return ok;
 }
 
+static void id_set_release(struct id_set *s)
+{
+    free(s->ids);
+    free(s->owners);
+    free(s->slots);
+    pthread_mutex_destroy(&s->lock);
+}
+
 /* Serialises the summary (names or values) joined by '\x1f' into *buf
  * (grown as needed, kept by the caller for the next record). Returns the
  * length, or (size_t)-1 when out of memory. */
@@ -738,6 +746,34 @@ static enum sg_status keep_summary(struct batch *b, struct worker_state *w, stru
     return SG_OK;
 }
 
+/* What reduce does with one record before its id is claimed and its files
+ * written, and all that check does: read it (every problem the reader finds
+ * into diags, which may be NULL), look its instruments up in the register
+ * through cal, and reduce it. rec must be initialised; on failure err says
+ * where and why, and *read_ok (may be NULL) whether the record itself was
+ * read (the failure came later, from the register or the reduction). */
+static enum sg_status prepare_record(const char *path, struct sg_calibio_cache *cal,
+                                     const struct sg_reduce_options *opt, struct sg_record *rec,
+                                     struct sg_constants *k, struct sg_result *res, struct sg_diag_list *diags,
+                                     bool *read_ok, struct sg_error *err)
+{
+    enum sg_status st = sg_recordio_load(path, rec, diags, err);
+    if (read_ok != NULL)
+        *read_ok = st == SG_OK;
+    if (st == SG_OK)
+        st = sg_calibio_resolve_cached(cal, rec, k, err);
+    if (st == SG_OK)
+        st = sg_reduce(rec, k, opt, res, err);
+    return st;
+}
+
+/* The refusal of a record whose test id owner's record has already. */
+static enum sg_status refuse_duplicate_id(const struct sg_record *rec, const char *owner, struct sg_error *err)
+{
+    return sg_error_set(err, SG_EINVAL, rec->pos_id.line, rec->pos_id.col,
+                        "test id '%s' is also used by '%s' (give each test its own id)", rec->id, owner);
+}
+
 static void run_job(struct batch *b, struct worker_state *w, struct job *job, struct sg_record *rec,
                     struct sg_result *res)
 {
@@ -746,11 +782,7 @@ static void run_job(struct batch *b, struct worker_state *w, struct job *job, st
     struct sg_constants k;
     sg_error_clear(&err);
     sg_record_init(rec);
-    enum sg_status st = sg_recordio_load(job->path, rec, NULL, &err);
-    if (st == SG_OK)
-        st = sg_calibio_resolve_cached(&w->cal, rec, &k, &err);
-    if (st == SG_OK)
-        st = sg_reduce(rec, &k, &cfg->opt, res, &err);
+    enum sg_status st = prepare_record(job->path, &w->cal, &cfg->opt, rec, &k, res, NULL, NULL, &err);
     if (st == SG_OK && cfg->mc_draws > 0) {
         const struct sg_mc_options mc = {cfg->mc_draws, cfg->seed,
                                          b->n_jobs == 1 ? (unsigned)cfg->jobs : 1u};
@@ -760,9 +792,7 @@ static void run_job(struct batch *b, struct worker_state *w, struct job *job, st
     if (st == SG_OK) {
         const char *owner = NULL;
         if (!id_claim(&b->ids, job->id, job->path, &owner))
-            st = sg_error_set(&err, SG_EINVAL, rec->pos_id.line, rec->pos_id.col,
-                              "test id '%s' is also used by '%s' (give each test its own id)", rec->id,
-                              owner);
+            st = refuse_duplicate_id(rec, owner, &err);
     }
     if (st == SG_OK)
         st = write_outputs(cfg, rec, res, w->iobuf, w->iobuf ? WRITE_BUFFER_SIZE : 0, &err);
@@ -1343,11 +1373,8 @@ int sg_cli_reduce(int argc, char **argv)
     for (size_t i = 0; i < b.schemas.n; i++)
         free(b.schemas.names[i]);
     free(b.schemas.names);
-    free(b.ids.ids);
-    free(b.ids.owners);
-    free(b.ids.slots);
+    id_set_release(&b.ids);
     pthread_mutex_destroy(&b.schemas.lock);
-    pthread_mutex_destroy(&b.ids.lock);
     pthread_mutex_destroy(&b.stderr_lock);
     collection_release(&input);
     return rc;
@@ -1358,8 +1385,10 @@ int sg_cli_reduce(int argc, char **argv)
 static const char check_help[] =
     "usage: sedgrade check [OPTIONS] FILE|DIR...\n"
     "\n"
-    "Validates test records: lists every problem found (file:line:column), writes\n"
-    "nothing. Instruments named in a record are looked up in the register.\n"
+    "Validates test records as reduce would, short of writing: each record is read,\n"
+    "its instruments are looked up in the register and it is reduced (default\n"
+    "reduction options). Lists every problem found (file:line:column) and every\n"
+    "test id used by two records; writes nothing.\n"
     "\n"
     "      --calibration DIR    instrument calibration register (default ./calibration)\n"
     "  -h, --help               this help\n"
@@ -1398,22 +1427,37 @@ int sg_cli_check(int argc, char **argv)
     note_repeats(&input);
     const struct path_list files = input.files;
     int rc = input.problems ? SG_EXIT_INPUT : SG_EXIT_OK;
+    /* the ids of the records that passed, claimed as reduce claims them */
+    char(*ids)[SG_ID_MAX] = calloc(files.n ? files.n : 1, sizeof *ids);
+    struct id_set claimed = {0};
+    if (ids == NULL) {
+        sg_cli_errorf("out of memory for %zu test records", files.n);
+        collection_release(&input);
+        return SG_EXIT_IO;
+    }
+    pthread_mutex_init(&claimed.lock, NULL);
+    const struct sg_reduce_options opt = sg_reduce_options_default();
     struct sg_calibio_cache cal;
     sg_calibio_cache_init(&cal, register_dir);
+    struct sg_record rec;
+    struct sg_result res;
+    sg_result_init(&res);
     for (size_t i = 0; i < files.n; i++) {
-        struct sg_record rec;
         struct sg_diag_list diags = {0};
         struct sg_error err;
+        struct sg_constants k;
         sg_error_clear(&err);
         sg_record_init(&rec);
-        enum sg_status st = sg_recordio_load(files.items[i], &rec, &diags, &err);
+        bool read_ok = false;
+        enum sg_status st = prepare_record(files.items[i], &cal, &opt, &rec, &k, &res, &diags, &read_ok, &err);
         if (st == SG_OK) {
-            struct sg_constants k;
-            st = sg_calibio_resolve_cached(&cal, &rec, &k, &err);
-            if (st != SG_OK)
-                (void)sg_diag_add(&diags, &err);
+            const char *owner = NULL;
+            (void)snprintf(ids[i], sizeof ids[i], "%s", rec.id);
+            if (!id_claim(&claimed, ids[i], files.items[i], &owner))
+                st = refuse_duplicate_id(&rec, owner, &err);
         }
-        if (st != SG_OK && diags.n == 0)
+        /* the reader lists its own problems; a refusal after reading is one more */
+        if (st != SG_OK && (read_ok || diags.n == 0))
             (void)sg_diag_add(&diags, &err);
         for (size_t j = 0; j < diags.n; j++)
             sg_cli_report(files.items[i], &diags.items[j]);
@@ -1429,6 +1473,9 @@ int sg_cli_check(int argc, char **argv)
         sg_diag_release(&diags);
         sg_record_release(&rec);
     }
+    sg_result_release(&res);
+    id_set_release(&claimed);
+    free(ids);
     sg_calibio_cache_release(&cal);
     collection_release(&input);
     return rc;
