@@ -1064,7 +1064,8 @@ static const char reduce_help[] =
     "      --mc N               Monte Carlo uncertainty with N draws (JCGM 101)\n"
     "      --seed S             random seed for --mc (default 1)\n"
     "  -j, --jobs N             threads (default: the number of processors)\n"
-    "      --outputs LIST       per-test files: points,summary,curve (default) or none\n"
+    "      --outputs LIST       per-test files: points,summary,curve (default), or none\n"
+    "                           for no per-test file and the batch summary.csv alone\n"
     "      --dx LIST            extra D-values to report, percent finer (e.g. 5,90,95)\n"
     "      --strict             QC warnings fail the test (exit 1)\n"
     "      --junction-gap PCT   sieve/sedimentation junction gap limit (default 5)\n"
@@ -1075,29 +1076,48 @@ static const char reduce_help[] =
     "exit status: 0 all good; 1 results written but a test failed a QC rule;\n"
     "2 bad input or usage (nothing written for that test); 3 I/O failure.\n";
 
+/* --outputs: a comma-separated list of points, summary and curve, or none
+ * alone (no per-test files: the batch summary.csv only). */
+#define OUTPUTS_HINT "give points, summary and curve separated by commas, or none alone for the batch summary.csv"
 static bool parse_outputs(const char *text, unsigned *out)
 {
+    if (text[0] == '\0') {
+        sg_cli_errorf("option --outputs: the list is empty (" OUTPUTS_HINT ")");
+        return false;
+    }
     unsigned v = 0;
-    char buf[128];
-    if (snprintf(buf, sizeof buf, "%s", text) >= (int)sizeof buf)
-        goto bad;
-    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
-        if (strcmp(tok, "points") == 0)
+    bool none = false;
+    size_t n_items = 0;
+    for (const char *p = text;; p++) {
+        const size_t len = strcspn(p, ",");
+        if (len == 0) {
+            sg_cli_errorf("option --outputs: '%s' has an empty item (" OUTPUTS_HINT ")", text);
+            return false;
+        }
+        if (len == 6 && strncmp(p, "points", len) == 0)
             v |= OUT_POINTS;
-        else if (strcmp(tok, "summary") == 0)
+        else if (len == 7 && strncmp(p, "summary", len) == 0)
             v |= OUT_SUMMARY;
-        else if (strcmp(tok, "curve") == 0)
+        else if (len == 5 && strncmp(p, "curve", len) == 0)
             v |= OUT_CURVE;
-        else if (strcmp(tok, "none") == 0)
-            v |= 0;
-        else
-            goto bad;
+        else if (len == 4 && strncmp(p, "none", len) == 0)
+            none = true;
+        else {
+            sg_cli_errorf("option --outputs: '%.*s' is not points, summary, curve or none (" OUTPUTS_HINT ")",
+                          (int)len, p);
+            return false;
+        }
+        n_items++;
+        p += len;
+        if (*p == '\0')
+            break;
+    }
+    if (none && n_items > 1) {
+        sg_cli_errorf("option --outputs: '%s' combines none with other outputs (" OUTPUTS_HINT ")", text);
+        return false;
     }
     *out = v;
     return true;
-bad:
-    sg_cli_errorf("option --outputs: '%s' is not a list of points, summary, curve or none", text);
-    return false;
 }
 
 static bool parse_dx(const char *text, struct reduce_cfg *cfg)
@@ -1352,7 +1372,9 @@ int sg_cli_reduce(int argc, char **argv)
             }
 
     int rc = SG_EXIT_OK;
-    if (files.n > 1) {
+    /* the batch summary: for more than one test, and always with --outputs
+     * none, where it is the only result file */
+    if (files.n > 1 || cfg.outputs == 0) {
         qsort(b.jobs, b.n_jobs, sizeof *b.jobs, cmp_job);
         if (write_batch_summary(&b, &err) != SG_OK) {
             sg_cli_report(NULL, &err);
