@@ -885,6 +885,14 @@ static size_t split_fields(char *s, char **fields, size_t max)
 
 #define MAX_COLUMNS 512
 
+/* The quantities SPEC.md says every per-test summary holds, in its order:
+ * columns of the batch summary even when no test could be reduced (all
+ * refused, or a full disk), so scripts reading it find them. */
+static const char *const always_columns[] = {
+    "d10_mm",   "d15_mm",   "d30_mm",     "d50_mm",        "d60_mm",        "d85_mm",
+    "cu",       "cc",       "clay_pct",   "silt_pct",      "sand_pct",      "gravel_pct",
+    "fines_pct", "usda_sand_pct", "usda_silt_pct", "usda_clay_pct", "usda_texture"};
+
 static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
 {
     /* Columns: the union of quantity names in order of first appearance.
@@ -953,6 +961,18 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
                 col_of[s * MAX_COLUMNS + j] = i + 1;
         }
         free(copy);
+    }
+    for (size_t i = 0; i < sizeof always_columns / sizeof always_columns[0] && n_cols < MAX_COLUMNS; i++) {
+        size_t j = 0;
+        while (j < n_cols && strcmp(cols[j], always_columns[i]) != 0)
+            j++;
+        if (j == n_cols) {
+            if ((cols[n_cols] = strdup(always_columns[i])) == NULL) {
+                st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
+                goto cleanup;
+            }
+            n_cols++;
+        }
     }
     /* a schema whose fields are the columns in order (the usual case: one
      * kind of record) has its spilled values copied as they are */
