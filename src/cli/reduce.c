@@ -49,6 +49,7 @@ struct reduce_cfg {
     unsigned long seed;
     size_t jobs;
     bool quiet;
+    bool batch_summary; /* summary.csv is written (more than one test, or --outputs none) */
 };
 
 /* The outcome of one record. */
@@ -650,10 +651,17 @@ static enum sg_status write_outputs(const struct reduce_cfg *cfg, const struct s
     }
     if (st == SG_OK && cfg->report) {
         char path[PATH_MAX];
+        /* the report names for its cut tables only the files written beside it */
+        char points[SG_ID_MAX + 16], findings[SG_ID_MAX + 16];
+        (void)snprintf(points, sizeof points, "%s.points.csv", rec->id);
+        (void)snprintf(findings, sizeof findings, "%s.summary.csv", rec->id);
+        const struct sg_report_files files = {
+            (cfg->outputs & OUT_POINTS) ? points : NULL,
+            (cfg->outputs & OUT_SUMMARY) ? findings : cfg->batch_summary ? "summary.csv" : NULL};
         if (snprintf(path, sizeof path, "%s/%s.report.pdf", cfg->out_dir, rec->id) >= (int)sizeof path)
             st = sg_error_set(err, SG_EIO, 0, 0, "output path for '%s' is too long", rec->id);
         else
-            st = sg_report_write(res, rec, path, err);
+            st = sg_report_write_with(res, rec, &files, path, err);
     }
     if (st != SG_OK)
         remove_outputs(cfg->out_dir, rec->id);
@@ -1325,6 +1333,7 @@ int sg_cli_reduce(int argc, char **argv)
         note_repeats(&input);
     const struct path_list files = input.files;
     const size_t walk_problems = input.problems;
+    cfg.batch_summary = files.n > 1 || cfg.outputs == 0;
     if (files.n == 0) {
         sg_cli_errorf("no test records (*.csv) found in the given paths");
         collection_release(&input);
@@ -1394,7 +1403,7 @@ int sg_cli_reduce(int argc, char **argv)
     int rc = SG_EXIT_OK;
     /* the batch summary: for more than one test, and always with --outputs
      * none, where it is the only result file */
-    if (files.n > 1 || cfg.outputs == 0) {
+    if (cfg.batch_summary) {
         qsort(b.jobs, b.n_jobs, sizeof *b.jobs, cmp_job);
         if (write_batch_summary(&b, &err) != SG_OK) {
             sg_cli_report(NULL, &err);
