@@ -450,3 +450,71 @@ Test(report, no_text_overlaps_for_any_demo_record_or_long_tables)
     cr_assert_eq(sg_report_write(&res, &rec, p, NULL), SG_OK);
     check_layout(p);
 }
+
+/* A test id of the longest length a record allows (63 characters). */
+static void long_id(void)
+{
+    static const char id[] = "KV-BH03-D2-long-identifier-of-sixty-three-characters-0123456789";
+    cr_assert_eq(strlen(id), SG_ID_MAX - 1);
+    (void)snprintf(res.id, sizeof res.id, "%s", id);
+    (void)snprintf(rec.id, sizeof rec.id, "%s", id);
+}
+
+/* Guards the "... n more rows" lines against running out of their column:
+ * with a 63-character id, 60 more readings, 20 more sieve rows and 40
+ * findings the sieve table is cut, and its line (which named
+ * <id>.points.csv in full) overprinted the QC text in the right-hand
+ * column. Every word stays clear of every other; a name too long for the
+ * column gives way to the file's kind. */
+Test(report, more_rows_line_fits_its_column_with_a_long_id)
+{
+    NEED_POPPLER();
+    long_id();
+    const struct sg_point hyd = res.points[res.n_points - 1];
+    for (int i = 0; i < 60; i++)
+        cr_assert_eq(sg_result_add_point(&res, &hyd), SG_OK);
+    struct sg_point sv = res.points[0];
+    for (int i = 0; i < 20; i++)
+        cr_assert_eq(sg_result_add_point(&res, &sv), SG_OK);
+    for (int i = 0; i < 40; i++)
+        cr_assert_eq(sg_result_add_flag(&res, "test_flag", SG_SEVERITY_WARNING, (unsigned)(100 + i),
+                                        "finding %d beside the sieve table", i),
+                     SG_OK);
+    char p[160];
+    (void)snprintf(p, sizeof p, "%s/long-id.pdf", dir);
+    cr_assert_eq(sg_report_write(&res, &rec, p, NULL), SG_OK);
+    check_layout(p);
+    char *t = write_and_read("long-id.pdf");
+    contains(t, "more rows (see the points file)");                  /* the half-page sieve column */
+    contains(t, "more rows (see " "KV-BH03-D2-long-identifier-of"); /* the full-width readings table */
+    contains(t, "more findings (see the summary file, qc_flags)");
+    free(t);
+}
+
+/* Guards the report against sending the reader to files that were not
+ * written (reduce --outputs none --report named <id>.points.csv): with no
+ * points file it says so, and the findings point to the file named. */
+Test(report, cut_tables_name_only_files_written)
+{
+    NEED_POPPLER();
+    const struct sg_point hyd = res.points[res.n_points - 1];
+    for (int i = 0; i < 60; i++)
+        cr_assert_eq(sg_result_add_point(&res, &hyd), SG_OK);
+    for (int i = 0; i < 40; i++)
+        cr_assert_eq(sg_result_add_flag(&res, "test_flag", SG_SEVERITY_WARNING, (unsigned)(100 + i),
+                                        "finding %d beside the sieve table", i),
+                     SG_OK);
+    const struct sg_report_files files = {NULL, "summary.csv"};
+    char p[160];
+    (void)snprintf(p, sizeof p, "%s/none.pdf", dir);
+    struct sg_error e;
+    cr_assert_eq(sg_report_write_with(&res, &rec, &files, p, &e), SG_OK, "%s", e.msg);
+    check_layout(p);
+    char cmd[256];
+    (void)snprintf(cmd, sizeof cmd, "pdftotext '%s' -", p);
+    char *t = run(cmd);
+    contains(t, "more rows (no points file was written)");
+    contains(t, "more findings (see summary.csv, qc_flags)");
+    cr_assert(strstr(t, "points.csv") == NULL, "no points file is named:\n%s", t);
+    free(t);
+}

@@ -49,6 +49,7 @@ struct reduce_cfg {
     unsigned long seed;
     size_t jobs;
     bool quiet;
+    bool batch_summary; /* summary.csv is written (more than one test, or --outputs none) */
 };
 
 /* The outcome of one record. */
@@ -147,11 +148,112 @@ static void path_list_release(struct path_list *l)
     l->n = l->cap = 0;
 }
 
-/* A folder entry while walking: its path and whether the listing named it
- * a regular file. */
+/* A file or folder by device and inode: what every path to it shares
+ * (symbolic links, hard links, "dir/x.csv" and "./dir/x.csv"). */
+struct node_id {
+    dev_t dev;
+    ino_t ino;
+};
+
+static struct node_id node_of(const struct stat *st)
+{
+    return (struct node_id){st->st_dev, st->st_ino};
+}
+
+/* The files and folders already listed: an open-addressing hash set,
+ * at most half full. */
+struct node_set {
+    struct node_id *slots;
+    bool *used;
+    size_t n, n_slots; /* n_slots a power of two */
+};
+
+static size_t node_hash(struct node_id id)
+{
+    /* splitmix64's finaliser (Steele, Lea, Flood 2014; public domain) */
+    uint64_t h = (uint64_t)id.ino ^ ((uint64_t)id.dev * 0x9e3779b97f4a7c15u);
+    h = (h ^ (h >> 30)) * 0xbf58476d1ce4e5b9u;
+    h = (h ^ (h >> 27)) * 0x94d049bb133111ebu;
+    return (size_t)(h ^ (h >> 31));
+}
+
+static size_t node_slot(const struct node_set *s, struct node_id id)
+{
+    const size_t mask = s->n_slots - 1;
+    size_t i = node_hash(id) & mask;
+    while (s->used[i] && !(s->slots[i].dev == id.dev && s->slots[i].ino == id.ino))
+        i = (i + 1) & mask;
+    return i;
+}
+
+/* Adds id; *added tells whether it was new. false when out of memory. */
+static bool node_set_add(struct node_set *s, struct node_id id, bool *added)
+{
+    if (2 * (s->n + 1) > s->n_slots) {
+        const size_t n_slots = s->n_slots ? 2 * s->n_slots : 256;
+        struct node_set grown = {calloc(n_slots, sizeof *grown.slots), calloc(n_slots, sizeof *grown.used), 0,
+                                 n_slots};
+        if (grown.slots == NULL || grown.used == NULL) {
+            free(grown.slots);
+            free(grown.used);
+            return false;
+        }
+        for (size_t i = 0; i < s->n_slots; i++)
+            if (s->used[i]) {
+                const size_t j = node_slot(&grown, s->slots[i]);
+                grown.slots[j] = s->slots[i];
+                grown.used[j] = true;
+            }
+        grown.n = s->n;
+        free(s->slots);
+        free(s->used);
+        *s = grown;
+    }
+    const size_t i = node_slot(s, id);
+    *added = !s->used[i];
+    if (*added) {
+        s->slots[i] = id;
+        s->used[i] = true;
+        s->n++;
+    }
+    return true;
+}
+
+static void node_set_release(struct node_set *s)
+{
+    free(s->slots);
+    free(s->used);
+    *s = (struct node_set){0};
+}
+
+/* What a walk over the command line's paths gathers. */
+struct collection {
+    struct path_list files; /* each record file once, in argument and then sorted folder order */
+    struct node_set seen;   /* folders walked and files listed */
+    bool has_skip;          /* skip: the output folder, never read as input */
+    struct node_id skip;
+    size_t problems;        /* unreadable folders or files, each reported */
+    size_t repeats;         /* paths that led to a file or folder already listed */
+};
+
+/* Lists path (a file whose stat is st, or NULL when it cannot be read: the
+ * reader then reports why) unless the same file is listed already. */
+static bool add_file(struct collection *c, const char *path, const struct stat *st)
+{
+    bool added = true;
+    if (st != NULL && !node_set_add(&c->seen, node_of(st), &added))
+        return false;
+    if (!added) {
+        c->repeats++;
+        return true;
+    }
+    return path_list_add(&c->files, path);
+}
+
+/* A folder entry while walking: its path and what stat found. */
 struct entry {
     char *path;
-    bool regular;
+    struct stat st;
 };
 
 static int cmp_entry(const void *a, const void *b)
@@ -165,22 +267,34 @@ static bool has_csv_suffix(const char *name)
     return n > 4 && strcmp(name + n - 4, ".csv") == 0;
 }
 
-/* Walks dir for *.csv (sorted, recursive; hidden entries and skip_dir are
- * skipped). Unreadable folders are reported and counted in *problems. */
-static bool walk(const char *dir, const char *skip_real, struct path_list *out, int depth, size_t *problems)
+#define MAX_FOLDER_DEPTH 32
+
+/* Walks dir (whose stat is dir_st) for *.csv, sorted and recursive; hidden
+ * entries and the output folder are skipped. A folder reached again (a
+ * symbolic link to a parent or to itself, or the same folder named twice)
+ * is not walked again, so every file is listed once and a loop ends.
+ * Unreadable folders are reported and counted. false when out of memory. */
+static bool walk(struct collection *c, const char *dir, const struct stat *dir_st, int depth)
 {
-    char real[PATH_MAX];
-    if (skip_real != NULL && realpath(dir, real) != NULL && strcmp(real, skip_real) == 0)
+    const struct node_id id = node_of(dir_st);
+    if (c->has_skip && id.dev == c->skip.dev && id.ino == c->skip.ino)
         return true;
-    if (depth > 32) {
-        sg_cli_errorf("%s: folders nested too deeply (more than 32 levels); skipped", dir);
-        (*problems)++;
+    bool added = false;
+    if (!node_set_add(&c->seen, id, &added))
+        return false;
+    if (!added) {
+        c->repeats++;
+        return true;
+    }
+    if (depth > MAX_FOLDER_DEPTH) {
+        sg_cli_errorf("%s: folders nested too deeply (more than %d levels); skipped", dir, MAX_FOLDER_DEPTH);
+        c->problems++;
         return true;
     }
     DIR *d = opendir(dir);
     if (d == NULL) {
         sg_cli_errorf("%s: cannot read folder: %s", dir, strerror(errno));
-        (*problems)++;
+        c->problems++;
         return true;
     }
     struct entry *here = NULL;
@@ -190,16 +304,26 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
     while (ok && (e = readdir(d)) != NULL) {
         if (e->d_name[0] == '.')
             continue;
-        bool regular = false;
 #ifdef DT_REG
-        /* a regular file the listing already names as one needs no stat
-         * (an archive folder holds thousands); anything else is checked */
-        regular = e->d_type == DT_REG;
-        if (regular && !has_csv_suffix(e->d_name))
+        /* a regular file the listing names as one is taken only as *.csv
+         * (an archive folder holds thousands of other files) */
+        if (e->d_type == DT_REG && !has_csv_suffix(e->d_name))
             continue;
 #endif
         char path[PATH_MAX];
         if (snprintf(path, sizeof path, "%s/%s", dir, e->d_name) >= (int)sizeof path)
+            continue;
+        /* the device and inode say whether this file or folder is listed
+         * already; fstatat looks up one name in the open folder */
+        struct stat st;
+        if (fstatat(dirfd(d), e->d_name, &st, 0) != 0) {
+            if (has_csv_suffix(e->d_name)) {
+                sg_cli_errorf("%s: cannot read: %s", path, strerror(errno));
+                c->problems++;
+            }
+            continue;
+        }
+        if (!S_ISDIR(st.st_mode) && !has_csv_suffix(e->d_name))
             continue;
         if (n_here == cap_here) {
             const size_t cap = cap_here ? 2 * cap_here : 64;
@@ -212,7 +336,7 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
             cap_here = cap;
         }
         here[n_here].path = strdup(path);
-        here[n_here].regular = regular;
+        here[n_here].st = st;
         ok = here[n_here].path != NULL;
         n_here += ok;
     }
@@ -220,23 +344,10 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
     if (n_here > 0)
         qsort(here, n_here, sizeof *here, cmp_entry);
     for (size_t i = 0; ok && i < n_here; i++) {
-        const char *path = here[i].path;
-        if (here[i].regular) {
-            ok = path_list_add(out, path);
-            continue;
-        }
-        struct stat st;
-        if (stat(path, &st) != 0) {
-            if (has_csv_suffix(path)) {
-                sg_cli_errorf("%s: cannot read: %s", path, strerror(errno));
-                (*problems)++;
-            }
-            continue;
-        }
-        if (S_ISDIR(st.st_mode))
-            ok = walk(path, skip_real, out, depth + 1, problems);
-        else if (has_csv_suffix(path))
-            ok = path_list_add(out, path);
+        if (S_ISDIR(here[i].st.st_mode))
+            ok = walk(c, here[i].path, &here[i].st, depth + 1);
+        else
+            ok = add_file(c, here[i].path, &here[i].st);
     }
     for (size_t i = 0; i < n_here; i++)
         free(here[i].path);
@@ -244,20 +355,43 @@ static bool walk(const char *dir, const char *skip_real, struct path_list *out, 
     return ok;
 }
 
-static bool collect(char **args, int n, const char *skip_dir, struct path_list *out, size_t *problems)
+/* Lists the record files of args (files, or folders walked), each file
+ * once however many paths lead to it; skip_dir (may be NULL) is never
+ * walked. false when out of memory. */
+static bool collect(char **args, int n, const char *skip_dir, struct collection *c)
 {
-    char skip_real[PATH_MAX];
-    const char *skip = skip_dir != NULL && realpath(skip_dir, skip_real) != NULL ? skip_real : NULL;
+    struct stat st;
+    if (skip_dir != NULL && stat(skip_dir, &st) == 0 && S_ISDIR(st.st_mode)) {
+        c->has_skip = true;
+        c->skip = node_of(&st);
+    }
     for (int i = 0; i < n; i++) {
-        struct stat st;
-        if (stat(args[i], &st) == 0 && S_ISDIR(st.st_mode)) {
-            if (!walk(args[i], skip, out, 0, problems))
-                return false;
-        } else if (!path_list_add(out, args[i])) {
+        bool ok;
+        if (stat(args[i], &st) != 0)
+            ok = add_file(c, args[i], NULL);
+        else if (S_ISDIR(st.st_mode))
+            ok = walk(c, args[i], &st, 0);
+        else
+            ok = add_file(c, args[i], &st);
+        if (!ok)
             return false;
-        }
     }
     return true;
+}
+
+/* One short note when some paths were dropped as repeats. */
+static void note_repeats(const struct collection *c)
+{
+    if (c->repeats > 0)
+        sg_cli_errorf("note: %zu path%s led to a record or folder already listed (a repeated name, a link "
+                      "or a folder loop); each record is read once",
+                      c->repeats, c->repeats == 1 ? "" : "s");
+}
+
+static void collection_release(struct collection *c)
+{
+    path_list_release(&c->files);
+    node_set_release(&c->seen);
 }
 
 /* ---- batch bookkeeping ---- */
@@ -361,6 +495,14 @@ static bool id_claim(struct id_set *s, const char *id, const char *path, const c
     }
     pthread_mutex_unlock(&s->lock);
     return ok;
+}
+
+static void id_set_release(struct id_set *s)
+{
+    free(s->ids);
+    free(s->owners);
+    free(s->slots);
+    pthread_mutex_destroy(&s->lock);
 }
 
 /* Serialises the summary (names or values) joined by '\x1f' into *buf
@@ -509,10 +651,17 @@ static enum sg_status write_outputs(const struct reduce_cfg *cfg, const struct s
     }
     if (st == SG_OK && cfg->report) {
         char path[PATH_MAX];
+        /* the report names for its cut tables only the files written beside it */
+        char points[SG_ID_MAX + 16], findings[SG_ID_MAX + 16];
+        (void)snprintf(points, sizeof points, "%s.points.csv", rec->id);
+        (void)snprintf(findings, sizeof findings, "%s.summary.csv", rec->id);
+        const struct sg_report_files files = {
+            (cfg->outputs & OUT_POINTS) ? points : NULL,
+            (cfg->outputs & OUT_SUMMARY) ? findings : cfg->batch_summary ? "summary.csv" : NULL};
         if (snprintf(path, sizeof path, "%s/%s.report.pdf", cfg->out_dir, rec->id) >= (int)sizeof path)
             st = sg_error_set(err, SG_EIO, 0, 0, "output path for '%s' is too long", rec->id);
         else
-            st = sg_report_write(res, rec, path, err);
+            st = sg_report_write_with(res, rec, &files, path, err);
     }
     if (st != SG_OK)
         remove_outputs(cfg->out_dir, rec->id);
@@ -605,6 +754,34 @@ static enum sg_status keep_summary(struct batch *b, struct worker_state *w, stru
     return SG_OK;
 }
 
+/* What reduce does with one record before its id is claimed and its files
+ * written, and all that check does: read it (every problem the reader finds
+ * into diags, which may be NULL), look its instruments up in the register
+ * through cal, and reduce it. rec must be initialised; on failure err says
+ * where and why, and *read_ok (may be NULL) whether the record itself was
+ * read (the failure came later, from the register or the reduction). */
+static enum sg_status prepare_record(const char *path, struct sg_calibio_cache *cal,
+                                     const struct sg_reduce_options *opt, struct sg_record *rec,
+                                     struct sg_constants *k, struct sg_result *res, struct sg_diag_list *diags,
+                                     bool *read_ok, struct sg_error *err)
+{
+    enum sg_status st = sg_recordio_load(path, rec, diags, err);
+    if (read_ok != NULL)
+        *read_ok = st == SG_OK;
+    if (st == SG_OK)
+        st = sg_calibio_resolve_cached(cal, rec, k, err);
+    if (st == SG_OK)
+        st = sg_reduce(rec, k, opt, res, err);
+    return st;
+}
+
+/* The refusal of a record whose test id owner's record has already. */
+static enum sg_status refuse_duplicate_id(const struct sg_record *rec, const char *owner, struct sg_error *err)
+{
+    return sg_error_set(err, SG_EINVAL, rec->pos_id.line, rec->pos_id.col,
+                        "test id '%s' is also used by '%s' (give each test its own id)", rec->id, owner);
+}
+
 static void run_job(struct batch *b, struct worker_state *w, struct job *job, struct sg_record *rec,
                     struct sg_result *res)
 {
@@ -613,11 +790,7 @@ static void run_job(struct batch *b, struct worker_state *w, struct job *job, st
     struct sg_constants k;
     sg_error_clear(&err);
     sg_record_init(rec);
-    enum sg_status st = sg_recordio_load(job->path, rec, NULL, &err);
-    if (st == SG_OK)
-        st = sg_calibio_resolve_cached(&w->cal, rec, &k, &err);
-    if (st == SG_OK)
-        st = sg_reduce(rec, &k, &cfg->opt, res, &err);
+    enum sg_status st = prepare_record(job->path, &w->cal, &cfg->opt, rec, &k, res, NULL, NULL, &err);
     if (st == SG_OK && cfg->mc_draws > 0) {
         const struct sg_mc_options mc = {cfg->mc_draws, cfg->seed,
                                          b->n_jobs == 1 ? (unsigned)cfg->jobs : 1u};
@@ -627,9 +800,7 @@ static void run_job(struct batch *b, struct worker_state *w, struct job *job, st
     if (st == SG_OK) {
         const char *owner = NULL;
         if (!id_claim(&b->ids, job->id, job->path, &owner))
-            st = sg_error_set(&err, SG_EINVAL, rec->pos_id.line, rec->pos_id.col,
-                              "test id '%s' is also used by '%s' (give each test its own id)", rec->id,
-                              owner);
+            st = refuse_duplicate_id(rec, owner, &err);
     }
     if (st == SG_OK)
         st = write_outputs(cfg, rec, res, w->iobuf, w->iobuf ? WRITE_BUFFER_SIZE : 0, &err);
@@ -722,6 +893,14 @@ static size_t split_fields(char *s, char **fields, size_t max)
 
 #define MAX_COLUMNS 512
 
+/* The quantities SPEC.md says every per-test summary holds, in its order:
+ * columns of the batch summary even when no test could be reduced (all
+ * refused, or a full disk), so scripts reading it find them. */
+static const char *const always_columns[] = {
+    "d10_mm",   "d15_mm",   "d30_mm",     "d50_mm",        "d60_mm",        "d85_mm",
+    "cu",       "cc",       "clay_pct",   "silt_pct",      "sand_pct",      "gravel_pct",
+    "fines_pct", "usda_sand_pct", "usda_silt_pct", "usda_clay_pct", "usda_texture"};
+
 static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
 {
     /* Columns: the union of quantity names in order of first appearance.
@@ -790,6 +969,18 @@ static enum sg_status write_batch_summary(struct batch *b, struct sg_error *err)
                 col_of[s * MAX_COLUMNS + j] = i + 1;
         }
         free(copy);
+    }
+    for (size_t i = 0; i < sizeof always_columns / sizeof always_columns[0] && n_cols < MAX_COLUMNS; i++) {
+        size_t j = 0;
+        while (j < n_cols && strcmp(cols[j], always_columns[i]) != 0)
+            j++;
+        if (j == n_cols) {
+            if ((cols[n_cols] = strdup(always_columns[i])) == NULL) {
+                st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory writing the batch summary");
+                goto cleanup;
+            }
+            n_cols++;
+        }
     }
     /* a schema whose fields are the columns in order (the usual case: one
      * kind of record) has its spilled values copied as they are */
@@ -901,7 +1092,8 @@ static const char reduce_help[] =
     "      --mc N               Monte Carlo uncertainty with N draws (JCGM 101)\n"
     "      --seed S             random seed for --mc (default 1)\n"
     "  -j, --jobs N             threads (default: the number of processors)\n"
-    "      --outputs LIST       per-test files: points,summary,curve (default) or none\n"
+    "      --outputs LIST       per-test files: points,summary,curve (default), or none\n"
+    "                           for no per-test file and the batch summary.csv alone\n"
     "      --dx LIST            extra D-values to report, percent finer (e.g. 5,90,95)\n"
     "      --strict             QC warnings fail the test (exit 1)\n"
     "      --junction-gap PCT   sieve/sedimentation junction gap limit (default 5)\n"
@@ -912,29 +1104,48 @@ static const char reduce_help[] =
     "exit status: 0 all good; 1 results written but a test failed a QC rule;\n"
     "2 bad input or usage (nothing written for that test); 3 I/O failure.\n";
 
+/* --outputs: a comma-separated list of points, summary and curve, or none
+ * alone (no per-test files: the batch summary.csv only). */
+#define OUTPUTS_HINT "give points, summary and curve separated by commas, or none alone for the batch summary.csv"
 static bool parse_outputs(const char *text, unsigned *out)
 {
+    if (text[0] == '\0') {
+        sg_cli_errorf("option --outputs: the list is empty (" OUTPUTS_HINT ")");
+        return false;
+    }
     unsigned v = 0;
-    char buf[128];
-    if (snprintf(buf, sizeof buf, "%s", text) >= (int)sizeof buf)
-        goto bad;
-    for (char *save = NULL, *tok = strtok_r(buf, ",", &save); tok; tok = strtok_r(NULL, ",", &save)) {
-        if (strcmp(tok, "points") == 0)
+    bool none = false;
+    size_t n_items = 0;
+    for (const char *p = text;; p++) {
+        const size_t len = strcspn(p, ",");
+        if (len == 0) {
+            sg_cli_errorf("option --outputs: '%s' has an empty item (" OUTPUTS_HINT ")", text);
+            return false;
+        }
+        if (len == 6 && strncmp(p, "points", len) == 0)
             v |= OUT_POINTS;
-        else if (strcmp(tok, "summary") == 0)
+        else if (len == 7 && strncmp(p, "summary", len) == 0)
             v |= OUT_SUMMARY;
-        else if (strcmp(tok, "curve") == 0)
+        else if (len == 5 && strncmp(p, "curve", len) == 0)
             v |= OUT_CURVE;
-        else if (strcmp(tok, "none") == 0)
-            v |= 0;
-        else
-            goto bad;
+        else if (len == 4 && strncmp(p, "none", len) == 0)
+            none = true;
+        else {
+            sg_cli_errorf("option --outputs: '%.*s' is not points, summary, curve or none (" OUTPUTS_HINT ")",
+                          (int)len, p);
+            return false;
+        }
+        n_items++;
+        p += len;
+        if (*p == '\0')
+            break;
+    }
+    if (none && n_items > 1) {
+        sg_cli_errorf("option --outputs: '%s' combines none with other outputs (" OUTPUTS_HINT ")", text);
+        return false;
     }
     *out = v;
     return true;
-bad:
-    sg_cli_errorf("option --outputs: '%s' is not a list of points, summary, curve or none", text);
-    return false;
 }
 
 static bool parse_dx(const char *text, struct reduce_cfg *cfg)
@@ -1112,22 +1323,26 @@ int sg_cli_reduce(int argc, char **argv)
             return rc;
     }
 
-    struct path_list files = {0};
-    size_t walk_problems = 0;
-    if (!collect(argv + optind, argc - optind, cfg.out_dir, &files, &walk_problems)) {
+    struct collection input = {0};
+    if (!collect(argv + optind, argc - optind, cfg.out_dir, &input)) {
         sg_cli_errorf("out of memory listing the test records");
-        path_list_release(&files);
+        collection_release(&input);
         return SG_EXIT_IO;
     }
+    if (!cfg.quiet)
+        note_repeats(&input);
+    const struct path_list files = input.files;
+    const size_t walk_problems = input.problems;
+    cfg.batch_summary = files.n > 1 || cfg.outputs == 0;
     if (files.n == 0) {
         sg_cli_errorf("no test records (*.csv) found in the given paths");
-        path_list_release(&files);
+        collection_release(&input);
         return SG_EXIT_INPUT;
     }
     struct sg_error err;
     if (sg_mkdir_p(cfg.out_dir, &err) != SG_OK) {
         sg_cli_report(NULL, &err);
-        path_list_release(&files);
+        collection_release(&input);
         return SG_EXIT_IO;
     }
     if (cfg.plot[SG_PLOT_PNG] || cfg.plot[SG_PLOT_SVG] || cfg.plot[SG_PLOT_PDF] || cfg.report) {
@@ -1144,7 +1359,7 @@ int sg_cli_reduce(int argc, char **argv)
     b.jobs = calloc(files.n, sizeof *b.jobs);
     if (b.jobs == NULL) {
         sg_cli_errorf("out of memory for %zu test records", files.n);
-        path_list_release(&files);
+        collection_release(&input);
         return SG_EXIT_IO;
     }
     for (size_t i = 0; i < files.n; i++)
@@ -1186,7 +1401,9 @@ int sg_cli_reduce(int argc, char **argv)
             }
 
     int rc = SG_EXIT_OK;
-    if (files.n > 1) {
+    /* the batch summary: for more than one test, and always with --outputs
+     * none, where it is the only result file */
+    if (cfg.batch_summary) {
         qsort(b.jobs, b.n_jobs, sizeof *b.jobs, cmp_job);
         if (write_batch_summary(&b, &err) != SG_OK) {
             sg_cli_report(NULL, &err);
@@ -1207,13 +1424,10 @@ int sg_cli_reduce(int argc, char **argv)
     for (size_t i = 0; i < b.schemas.n; i++)
         free(b.schemas.names[i]);
     free(b.schemas.names);
-    free(b.ids.ids);
-    free(b.ids.owners);
-    free(b.ids.slots);
+    id_set_release(&b.ids);
     pthread_mutex_destroy(&b.schemas.lock);
-    pthread_mutex_destroy(&b.ids.lock);
     pthread_mutex_destroy(&b.stderr_lock);
-    path_list_release(&files);
+    collection_release(&input);
     return rc;
 }
 
@@ -1222,8 +1436,10 @@ int sg_cli_reduce(int argc, char **argv)
 static const char check_help[] =
     "usage: sedgrade check [OPTIONS] FILE|DIR...\n"
     "\n"
-    "Validates test records: lists every problem found (file:line:column), writes\n"
-    "nothing. Instruments named in a record are looked up in the register.\n"
+    "Validates test records as reduce would, short of writing: each record is read,\n"
+    "its instruments are looked up in the register and it is reduced (default\n"
+    "reduction options). Lists every problem found (file:line:column) and every\n"
+    "test id used by two records; writes nothing.\n"
     "\n"
     "      --calibration DIR    instrument calibration register (default ./calibration)\n"
     "  -h, --help               this help\n"
@@ -1253,29 +1469,46 @@ int sg_cli_check(int argc, char **argv)
         sg_cli_errorf("no test records given (usage: sedgrade check FILE|DIR...)");
         return SG_EXIT_INPUT;
     }
-    struct path_list files = {0};
-    size_t problems = 0;
-    if (!collect(argv + optind, argc - optind, NULL, &files, &problems)) {
-        path_list_release(&files);
+    struct collection input = {0};
+    if (!collect(argv + optind, argc - optind, NULL, &input)) {
+        sg_cli_errorf("out of memory listing the test records");
+        collection_release(&input);
         return SG_EXIT_IO;
     }
-    int rc = problems ? SG_EXIT_INPUT : SG_EXIT_OK;
+    note_repeats(&input);
+    const struct path_list files = input.files;
+    int rc = input.problems ? SG_EXIT_INPUT : SG_EXIT_OK;
+    /* the ids of the records that passed, claimed as reduce claims them */
+    char(*ids)[SG_ID_MAX] = calloc(files.n ? files.n : 1, sizeof *ids);
+    struct id_set claimed = {0};
+    if (ids == NULL) {
+        sg_cli_errorf("out of memory for %zu test records", files.n);
+        collection_release(&input);
+        return SG_EXIT_IO;
+    }
+    pthread_mutex_init(&claimed.lock, NULL);
+    const struct sg_reduce_options opt = sg_reduce_options_default();
     struct sg_calibio_cache cal;
     sg_calibio_cache_init(&cal, register_dir);
+    struct sg_record rec;
+    struct sg_result res;
+    sg_result_init(&res);
     for (size_t i = 0; i < files.n; i++) {
-        struct sg_record rec;
         struct sg_diag_list diags = {0};
         struct sg_error err;
+        struct sg_constants k;
         sg_error_clear(&err);
         sg_record_init(&rec);
-        enum sg_status st = sg_recordio_load(files.items[i], &rec, &diags, &err);
+        bool read_ok = false;
+        enum sg_status st = prepare_record(files.items[i], &cal, &opt, &rec, &k, &res, &diags, &read_ok, &err);
         if (st == SG_OK) {
-            struct sg_constants k;
-            st = sg_calibio_resolve_cached(&cal, &rec, &k, &err);
-            if (st != SG_OK)
-                (void)sg_diag_add(&diags, &err);
+            const char *owner = NULL;
+            (void)snprintf(ids[i], sizeof ids[i], "%s", rec.id);
+            if (!id_claim(&claimed, ids[i], files.items[i], &owner))
+                st = refuse_duplicate_id(&rec, owner, &err);
         }
-        if (st != SG_OK && diags.n == 0)
+        /* the reader lists its own problems; a refusal after reading is one more */
+        if (st != SG_OK && (read_ok || diags.n == 0))
             (void)sg_diag_add(&diags, &err);
         for (size_t j = 0; j < diags.n; j++)
             sg_cli_report(files.items[i], &diags.items[j]);
@@ -1291,7 +1524,10 @@ int sg_cli_check(int argc, char **argv)
         sg_diag_release(&diags);
         sg_record_release(&rec);
     }
+    sg_result_release(&res);
+    id_set_release(&claimed);
+    free(ids);
     sg_calibio_cache_release(&cal);
-    path_list_release(&files);
+    collection_release(&input);
     return rc;
 }

@@ -77,6 +77,8 @@ struct page {
     cairo_t *cr;
     const struct sg_result *res;
     const struct sg_record *rec;
+    const char *points_file;   /* where the rows cut from the tables are; NULL: not written */
+    const char *findings_file; /* where the QC findings cut are; NULL: not written */
 };
 
 static void ink(cairo_t *cr)
@@ -429,13 +431,33 @@ static void table_row(cairo_t *cr, double x, double y, const struct column *c, s
     }
 }
 
-static double more_rows(cairo_t *cr, double x, double y, size_t more, const char *id)
+/* Writes into buf the line that stands for what a table or list leaves
+ * out: head ("... 12 more rows") and where the rest is, file (and column,
+ * may be NULL) named when it fits in w pt in the current font, else the
+ * file's kind ("the points file"); or that no such file was written when
+ * file is NULL. The caller still fits the result to w. */
+static void more_text(cairo_t *cr, double w, const char *head, const char *file, const char *column,
+                      const char *kind, char *buf, size_t size)
 {
-    char s[160];
-    (void)snprintf(s, sizeof s, "\xe2\x80\xa6 %zu more row%s (see %s.points.csv)", more, more == 1 ? "" : "s", id);
+    const char *sep = column != NULL ? ", " : "", *col = column != NULL ? column : "";
+    if (file == NULL) {
+        (void)snprintf(buf, size, "%s (no %s file was written)", head, kind);
+        return;
+    }
+    (void)snprintf(buf, size, "%s (see %s%s%s)", head, file, sep, col);
+    if (sg_draw_text_width(cr, buf) > w)
+        (void)snprintf(buf, size, "%s (see the %s file%s%s)", head, kind, sep, col);
+}
+
+static double more_rows(const struct page *pg, double x, double y, double w, size_t more)
+{
+    cairo_t *cr = pg->cr;
+    char head[64], s[SG_ID_MAX + 160];
+    (void)snprintf(head, sizeof head, "\xe2\x80\xa6 %zu more row%s", more, more == 1 ? "" : "s");
     sg_draw_font(cr, TABLE_PT, false);
     sg_draw_rgb(cr, MUTED);
-    sg_draw_text(cr, x + 1.0, y, 0.0, s);
+    more_text(cr, w - 1.0, head, pg->points_file, NULL, "points", s, sizeof s);
+    sg_draw_text_fit(cr, x + 1.0, y, w - 1.0, 0.0, s);
     return y + TABLE_LEAD;
 }
 
@@ -491,7 +513,7 @@ static double sieve_table(const struct page *pg, double x, double y, double w, s
         k++;
     }
     if (shown < n)
-        y = more_rows(cr, x, y, n - shown, pg->res->id);
+        y = more_rows(pg, x, y, w, n - shown);
     return y;
 }
 
@@ -592,7 +614,7 @@ static double readings_table(const struct page *pg, double y, size_t max_rows)
         k++;
     }
     if (shown < n)
-        y = more_rows(cr, MARGIN_X, y, n - shown, pg->res->id);
+        y = more_rows(pg, MARGIN_X, y, CONTENT_W, n - shown);
     sg_draw_font(cr, SMALL_PT, false);
     sg_draw_rgb(cr, MUTED);
     const int fn = sg_draw_text_wrap(
@@ -691,8 +713,10 @@ static double qc_calibration(const struct page *pg, double x, double y, double w
         const double after = y + need * TABLE_LEAD - y0; /* height with this finding */
         const bool last = i + 1 == pg->res->n_flags;
         if ((last && after > max_h) || (!last && after + TABLE_LEAD > max_h)) {
-            (void)snprintf(s, sizeof s, "\xe2\x80\xa6 %zu more finding%s (see %s.summary.csv, qc_flags)",
-                           pg->res->n_flags - i, pg->res->n_flags - i == 1 ? "" : "s", pg->res->id);
+            char head[64];
+            (void)snprintf(head, sizeof head, "\xe2\x80\xa6 %zu more finding%s", pg->res->n_flags - i,
+                           pg->res->n_flags - i == 1 ? "" : "s");
+            more_text(cr, w, head, pg->findings_file, "qc_flags", "summary", s, sizeof s);
             if (draw) {
                 sg_draw_rgb(cr, MUTED);
                 sg_draw_text_fit(cr, x, y, w, 0.0, s);
@@ -881,6 +905,12 @@ static enum sg_status layout_and_draw(const struct page *pg)
 enum sg_status sg_report_write(const struct sg_result *res, const struct sg_record *rec, const char *path,
                                struct sg_error *err)
 {
+    return sg_report_write_with(res, rec, NULL, path, err);
+}
+
+enum sg_status sg_report_write_with(const struct sg_result *res, const struct sg_record *rec,
+                                    const struct sg_report_files *files, const char *path, struct sg_error *err)
+{
     if (res == NULL || rec == NULL || path == NULL)
         return sg_error_set(err, SG_EINVAL, 0, 0, "no result, record or path for the report (internal error)");
     char title[160], date[11] = "";
@@ -892,7 +922,11 @@ enum sg_status sg_report_write(const struct sg_result *res, const struct sg_reco
     enum sg_status st = sg_draw_open(&doc, SG_PLOT_PDF, SG_REPORT_WIDTH_PT, SG_REPORT_HEIGHT_PT, &meta, path, err);
     if (st != SG_OK)
         return st;
-    const struct page pg = {doc.cr, res, rec};
+    char points[sizeof res->id + 16], findings[sizeof res->id + 16];
+    (void)snprintf(points, sizeof points, "%s.points.csv", res->id);
+    (void)snprintf(findings, sizeof findings, "%s.summary.csv", res->id);
+    const struct page pg = {doc.cr, res, rec, files != NULL ? files->points : points,
+                            files != NULL ? files->findings : findings};
     if ((st = layout_and_draw(&pg)) != SG_OK) {
         sg_draw_abort(&doc);
         return sg_error_set(err, st, 0, 0, "out of memory laying out '%s'", path);
