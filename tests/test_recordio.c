@@ -411,6 +411,34 @@ Test(recordio, overflow_and_malformed_exponents)
     no_leaks();
 }
 
+/* Guards: numbers that a double cannot hold are refused at parse time with
+ * their location, instead of becoming 0 (1e-400), a subnormal (1e-320) or
+ * infinity (1e309) that surfaces later without a location. */
+Test(recordio, numbers_beyond_a_double_are_out_of_range)
+{
+    static const char *const cases[][2] = {
+        {"test,sample_dry_mass_g,1e-400\n", "sample dry mass '1e-400' is out of range: too near zero"},
+        {"test,sample_dry_mass_g,1e-320\n", "sample dry mass '1e-320' is out of range: too near zero"},
+        {"test,sample_dry_mass_g,-2.5e-310\n", "sample dry mass '-2.5e-310' is out of range: too near zero"},
+        {"test,sample_dry_mass_g,1e309\n", "sample dry mass '1e309' is out of range: too large"},
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        char text[512];
+        snprintf(text, sizeof text, "%s%s", HEAD, cases[i][0]);
+        struct run r;
+        parse(&r, text);
+        expect_first(&r, SG_EPARSE, 7, 24, cases[i][1]);
+        release(&r);
+    }
+    /* zero written with a large negative exponent is still zero */
+    struct run r;
+    parse(&r, HEAD "test,meniscus_correction,0.0e-400\nreading,1,40,20\n");
+    cr_assert_eq(r.st, SG_OK, "%s", r.err.msg);
+    cr_assert(r.rec.has_meniscus && r.rec.meniscus_correction == 0.0);
+    release(&r);
+    no_leaks();
+}
+
 /* ---- rows and keys ----------------------------------------------------------------- */
 
 Test(recordio, field_counts)

@@ -38,7 +38,10 @@
  * a row of empty fields counts as blank; an empty field before a value is an
  * error. A quoted field must close on the line where it opens. Numbers are
  * plain decimals (sign, digits, optional fraction and exponent) in the C
- * locale's notation; the program must not change LC_NUMERIC.
+ * locale's notation; the program must not change LC_NUMERIC. A number too
+ * large for a double, or not zero but nearer zero than the smallest normal
+ * double (about 2.2e-308), is refused as out of range rather than read as
+ * infinity, 0 or a subnormal.
  *
  * Returns SG_OK; SG_EPARSE when the text has syntax, format or value-text
  * problems (the record is then not validated); SG_EINVAL when it parsed but

@@ -6,6 +6,7 @@
 #include <csv.h>
 #include <errno.h>
 #include <fcntl.h>
+#include <float.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdbool.h>
@@ -313,7 +314,12 @@ static void fatal(struct rp *p, enum sg_status code)
 
 /* ---- numbers --------------------------------------------------------------------- */
 
-enum numerr { NUM_OK, NUM_EMPTY, NUM_WORD, NUM_HEX, NUM_UNIT, NUM_GROUPING, NUM_COMMA, NUM_RANGE, NUM_BAD };
+enum numerr {
+    NUM_OK, NUM_EMPTY, NUM_WORD, NUM_HEX, NUM_UNIT, NUM_GROUPING, NUM_COMMA,
+    NUM_TOO_LARGE, /* beyond the largest double: would be read as infinity */
+    NUM_TOO_SMALL, /* not zero, but nearer to zero than the smallest normal double: would be read as 0 or lose its digits */
+    NUM_BAD
+};
 
 static bool is_digit(unsigned char c)
 {
@@ -435,6 +441,16 @@ static bool fast_decimal(const char *s, double *out)
     return true;
 }
 
+/* Whether the mantissa of a number's text (before any exponent) has a digit
+ * other than 0. */
+static bool nonzero_mantissa(const char *s)
+{
+    for (; *s != '\0' && *s != 'e' && *s != 'E'; s++)
+        if (*s >= '1' && *s <= '9')
+            return true;
+    return false;
+}
+
 /* Parses a plain decimal number (field already trimmed). With decimal_comma
  * one ',' is taken as the decimal mark. */
 static enum numerr parse_number(const struct field *f, bool decimal_comma, double *out)
@@ -486,13 +502,14 @@ static enum numerr parse_number(const struct field *f, bool decimal_comma, doubl
         return NUM_BAD;
     }
 
-    errno = 0;
     char *end = NULL;
     const double v = strtod(buf, &end);
     if (end != buf + k)
         return NUM_BAD;
-    if (!isfinite(v) || (errno == ERANGE && fabs(v) > 1.0))
-        return NUM_RANGE;
+    if (!isfinite(v))
+        return NUM_TOO_LARGE;
+    if (fabs(v) < DBL_MIN && nonzero_mantissa(buf))
+        return NUM_TOO_SMALL; /* 1e-400 would silently be 0, 1e-320 a subnormal */
     *out = v;
     return NUM_OK;
 }
@@ -533,8 +550,16 @@ static bool number(struct rp *p, const struct field *f, const struct numspec *ns
                 "mark and no thousands separator, e.g. %s; or separate the fields with ';')",
                 ns->what, t, ns->example);
         break;
-    case NUM_RANGE:
-        problem(p, SG_EPARSE, f->line, f->col, "%s '%s' is out of range (write %s as a decimal number, e.g. %s)",
+    case NUM_TOO_LARGE:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' is out of range: too large to be held as a number (check the exponent; write %s as a "
+                "decimal number, e.g. %s)",
+                ns->what, t, ns->unit_words, ns->example);
+        break;
+    case NUM_TOO_SMALL:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' is out of range: too near zero to be held as a number (check the exponent; write %s "
+                "as a decimal number, e.g. %s)",
                 ns->what, t, ns->unit_words, ns->example);
         break;
     case NUM_WORD:
