@@ -83,6 +83,15 @@ static void expect_first(const struct run *r, enum sg_status st, unsigned line, 
     cr_assert_str_eq(r->err.msg, e->msg);
 }
 
+/* Whether some diagnostic at line (0: any line) contains frag. */
+static bool has_diag(const struct run *r, unsigned line, const char *frag)
+{
+    for (size_t i = 0; i < r->diags.n; i++)
+        if ((line == 0 || r->diags.items[i].line == line) && strstr(r->diags.items[i].msg, frag) != NULL)
+            return true;
+    return false;
+}
+
 /* A complete hydrometer record (',' separator) that later tests mutate. */
 #define HEAD                                                                                       \
     "test,id,T1\n"                                                                                 \
@@ -435,6 +444,33 @@ Test(recordio, numbers_beyond_a_double_are_out_of_range)
     parse(&r, HEAD "test,meniscus_correction,0.0e-400\nreading,1,40,20\n");
     cr_assert_eq(r.st, SG_OK, "%s", r.err.msg);
     cr_assert(r.rec.has_meniscus && r.rec.meniscus_correction == 0.0);
+    release(&r);
+    no_leaks();
+}
+
+/* Guards: ids starting with '.' gave hidden output files ("...points.csv");
+ * they are refused, naming the characters allowed. '.' inside an id stays. */
+Test(recordio, ids_starting_with_a_dot_are_refused)
+{
+    static const char *const ids[] = {".", "..", ".KV-1"};
+    for (size_t i = 0; i < sizeof ids / sizeof ids[0]; i++) {
+        char text[512];
+        snprintf(text, sizeof text, "test,id,%s\n", ids[i]);
+        struct run r;
+        parse(&r, text);
+        char want[128];
+        snprintf(want, sizeof want, "test id '%s' starts with '.' (it names the output files", ids[i]);
+        expect_first(&r, SG_EPARSE, 1, 9, want);
+        cr_assert_not_null(strstr(r.err.msg, "letters, digits, '.', '_' or '-'"));
+        cr_assert(!has_diag(&r, 0, "'id' is missing"));
+        release(&r);
+    }
+    struct run r;
+    parse(&r, HEAD "reading,1,40,20\n");
+    cr_assert_eq(r.st, SG_OK, "%s", r.err.msg);
+    release(&r);
+    parse(&r, "test,id,KV.1.\n");
+    cr_assert(!has_diag(&r, 0, "test id"));
     release(&r);
     no_leaks();
 }

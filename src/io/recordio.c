@@ -574,8 +574,9 @@ static bool number(struct rp *p, const struct field *f, const struct numspec *ns
 
 /* ---- names and words ------------------------------------------------------------- */
 
-/* 0 ok, 1 empty, 2 too long, 3 a character outside [A-Za-z0-9._-]. */
-static int check_name(const struct field *f)
+/* 0 ok, 1 empty, 2 too long, 3 a character outside [A-Za-z0-9._-], 4 a
+ * leading '.' (only where file_name asks for it). */
+static int check_name(const struct field *f, bool file_name)
 {
     if (f->len == 0)
         return 1;
@@ -586,13 +587,17 @@ static int check_name(const struct field *f)
         if (!(is_letter(c) || is_digit(c) || c == '.' || c == '_' || c == '-'))
             return 3;
     }
-    return 0;
+    return file_name && f->text[0] == '.' ? 4 : 0;
 }
 
-static bool name_value(struct rp *p, const struct field *f, const char *what, const char *hint, char *dst)
+/* file_name: the name is used for output files (the test id), so a leading
+ * '.' is refused: ".", ".." and ".x" would give hidden files such as
+ * "...points.csv", or name a folder. */
+static bool name_value(struct rp *p, const struct field *f, const char *what, const char *hint, bool file_name,
+                       char *dst)
 {
     char t[SHOW_BUF];
-    switch (check_name(f)) {
+    switch (check_name(f, file_name)) {
     case 0:
         memcpy(dst, f->text, f->len + 1); /* f->len < SG_NAME_MAX == SG_ID_MAX */
         return true;
@@ -602,6 +607,12 @@ static bool name_value(struct rp *p, const struct field *f, const char *what, co
     case 2:
         problem(p, SG_EPARSE, f->line, f->col, "%s '%s' is %zu characters long, at most %d are allowed (%s)",
                 what, show(f->text, t), f->len, SG_NAME_MAX - 1, hint);
+        return false;
+    case 4:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' starts with '.' (it names the output files, which would be hidden: start it with a "
+                "letter or digit, then letters, digits, '.', '_' or '-', e.g. BH1-2.5)",
+                what, show(f->text, t));
         return false;
     default:
         problem(p, SG_EPARSE, f->line, f->col,
@@ -748,13 +759,13 @@ static void test_row(struct rp *p)
     bool ok = false;
     switch (ko->type) {
     case V_ID:
-        ok = name_value(p, fv, "test id", "it names the output files; e.g. BH1-2.5", r->id);
+        ok = name_value(p, fv, "test id", "it names the output files; e.g. BH1-2.5", true, r->id);
         break;
     case V_NAME: {
         static const char *const what[] = {"hydrometer ID", "cylinder ID", "thermometer ID", "pipette ID"};
         char *const dst[] = {r->hydrometer, r->cylinder, r->thermometer, r->pipette_id};
         const size_t w = k == K_HYDROMETER ? 0 : k == K_CYLINDER ? 1 : k == K_THERMOMETER ? 2 : 3;
-        ok = name_value(p, fv, what[w], "use the instrument's ID in the calibration register", dst[w]);
+        ok = name_value(p, fv, what[w], "use the instrument's ID in the calibration register", false, dst[w]);
         break;
     }
     case V_METHOD:
