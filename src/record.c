@@ -360,6 +360,14 @@ enum sg_status sg_record_validate(const struct sg_record *rec, struct sg_diag_li
                        "the split sieve; list this sieve as 'sieve')",
                        rec->fine_sieve[i].aperture_mm, rec->split_aperture_mm);
     }
+    /* 'fine_sieve,pan' is accepted and kept, as 'sieve,pan' is, rather than
+     * refused: a laboratory that weighed the specimen's pan expects to record
+     * it, and the records in use do. What lies in a pan passed the finest
+     * sieve and counts as passing (a pan mass is never subtracted, METHODS.md
+     * 5.2), so it changes no point of the curve; what it is for is the mass
+     * balance, specimen dry mass against the fine-sieve masses and pan, the
+     * counterpart of the sample's balance on 'sieve,pan' (that rule belongs
+     * to the QC module). */
     check_sieve_rows(&c, rec->sieve, rec->n_sieve);
     check_sieve_rows(&c, rec->fine_sieve, rec->n_fine_sieve);
 

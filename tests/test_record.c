@@ -286,6 +286,20 @@ Test(record, refused_parts_are_not_reported_missing)
     sg_record_release(&rec);
 }
 
+/* Guards the choice for 'fine_sieve,pan': accepted like the whole sample's
+ * pan (aperture 0 in either list), never called an aperture of 0 mm. */
+Test(record, fine_sieve_pan_is_accepted)
+{
+    struct sg_record rec;
+    minimal_hydrometer(&rec);
+    const struct sg_sieve_row fine = {0.063, 4.48, at(20)}, pan = {0.0, 39.36, at(21)};
+    cr_assert_eq(sg_record_add_fine_sieve(&rec, fine), SG_OK);
+    cr_assert_eq(sg_record_add_fine_sieve(&rec, pan), SG_OK);
+    struct sg_error err;
+    cr_assert_eq(sg_record_validate(&rec, NULL, &err), SG_OK, "%s", err.msg);
+    sg_record_release(&rec);
+}
+
 /* Guards: a pipette that would draw more than the suspension holds is
  * refused before reduction, at the pipette volume. */
 Test(record, pipette_volume_below_suspension_volume)

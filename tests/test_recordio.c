@@ -772,6 +772,20 @@ Test(recordio, uncertainties_and_limits_have_upper_bounds)
     no_leaks();
 }
 
+/* Guards the choice for 'fine_sieve,pan': accepted and kept (aperture 0),
+ * as the whole sample's pan is, for the specimen's mass balance. */
+Test(recordio, fine_sieve_pan_is_kept)
+{
+    struct run r;
+    parse(&r, HEAD "reading,1,40,20\nfine_sieve,0.063,4.48\nfine_sieve,pan,39.36\n");
+    cr_assert_eq(r.st, SG_OK, "%s", r.err.msg);
+    cr_assert_eq(r.rec.n_fine_sieve, 2u);
+    cr_assert_float_eq(r.rec.fine_sieve[1].aperture_mm, SG_SIEVE_PAN_MM, TOL);
+    cr_assert_float_eq(r.rec.fine_sieve[1].retained_g, 39.36, TOL);
+    release(&r);
+    no_leaks();
+}
+
 /* ---- text, quotes and separators -------------------------------------------------- */
 
 Test(recordio, nul_byte_is_one_message)
