@@ -31,16 +31,19 @@ enum sg_status sg_hydrometer_reduce(const struct sg_hydrometer_input *in, struct
                             "hydrometer reading scale is not set (add 'test,reading_scale,g_per_l' or "
                             "'test,reading_scale,density')");
     if (!isfinite(in->elapsed_min) || in->elapsed_min <= 0.0)
-        return sg_error_set(err, SG_EINVAL, 0, 0, "elapsed time %g min must be positive", in->elapsed_min);
+        return sg_error_set(err, SG_EINVAL, 0, 0, "elapsed time %g min must be positive (give the minutes since the start of "
+                            "sedimentation, e.g. 0.5)",
+                            in->elapsed_min);
     if (!isfinite(in->specimen_dry_mass_g) || in->specimen_dry_mass_g <= 0.0)
-        return sg_error_set(err, SG_EINVAL, 0, 0, "specimen dry mass %g g must be positive",
+        return sg_error_set(err, SG_EINVAL, 0, 0, "specimen dry mass %g g must be positive (give the oven-dry mass of the "
+                            "sedimentation specimen in grams, e.g. 50.12)",
                             in->specimen_dry_mass_g);
     if (!isfinite(in->suspension_volume_ml) || in->suspension_volume_ml <= 0.0)
-        return sg_error_set(err, SG_EINVAL, 0, 0, "suspension volume %g mL must be positive",
+        return sg_error_set(err, SG_EINVAL, 0, 0, "suspension volume %g mL must be positive (give it in millilitres, e.g. 1000)",
                             in->suspension_volume_ml);
     const double a = sg_hydrometer_concentration_factor(in->scale, in->particle_density_mg_m3);
     if (!isfinite(a))
-        return sg_error_set(err, SG_EINVAL, 0, 0, "particle density %g Mg/m3 must be greater than 1",
+        return sg_error_set(err, SG_EINVAL, 0, 0, "particle density %g Mg/m3 must be greater than 1 (give it in Mg/m3, e.g. 2.65)",
                             in->particle_density_mg_m3);
 
     double rho_w = 0.0, eta = 0.0;

@@ -15,7 +15,9 @@ enum sg_status sg_sieve_reduce(const struct sg_sieve_row *rows, size_t n, double
                                struct sg_sieve_line *out, struct sg_error *err)
 {
     if (!isfinite(total_mass_g) || total_mass_g <= 0.0)
-        return sg_error_set(err, SG_EINVAL, 0, 0, "dry mass %g g must be positive", total_mass_g);
+        return sg_error_set(err, SG_EINVAL, 0, 0, "dry mass %g g must be positive (give the oven-dry mass in grams that the "
+                            "percentages refer to)",
+                            total_mass_g);
     for (size_t i = 0; i < n; i++) {
         const struct sg_sieve_row *r = &rows[i];
         if (!isfinite(r->aperture_mm) || r->aperture_mm < 0.0)
@@ -24,7 +26,9 @@ enum sg_status sg_sieve_reduce(const struct sg_sieve_row *rows, size_t n, double
                                 r->aperture_mm);
         if (!isfinite(r->retained_g) || r->retained_g < 0.0)
             return sg_error_set(err, SG_EINVAL, r->pos.line, r->pos.col,
-                                "retained mass %g g must not be negative", r->retained_g);
+                                "retained mass %g g must not be negative (give the dry mass retained on the "
+                                "sieve in grams, 0 if it held nothing)",
+                                r->retained_g);
         out[i] = (struct sg_sieve_line){.aperture_mm = r->aperture_mm,
                                         .retained_g = r->retained_g,
                                         .line = r->pos.line};

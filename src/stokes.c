@@ -14,7 +14,9 @@ double sg_stokes_velocity_m_s(double viscosity_pa_s, double density_diff_kg_m3, 
 static enum sg_status check_positive(double x, const char *what, const char *unit, struct sg_error *err)
 {
     if (!isfinite(x) || x <= 0.0)
-        return sg_error_set(err, SG_EINVAL, 0, 0, "%s %g %s must be a positive number", what, x, unit);
+        return sg_error_set(err, SG_EINVAL, 0, 0, "%s %g %s must be a positive number (check the record value or option it "
+                            "comes from, and its unit)",
+                            what, x, unit);
     return SG_OK;
 }
 

@@ -112,3 +112,33 @@ Test(hydrometer, errors)
     in.suspension_volume_ml = 0;
     cr_assert_eq(sg_hydrometer_reduce(&in, &out, &err), SG_EINVAL);
 }
+
+/* Guards: each refused input says what to do (the "(what to do)" part of
+ * every message), not only what is wrong. Inputs invented. */
+Test(hydrometer, errors_say_what_to_do)
+{
+    const struct sg_hydrometer_input good = {
+        .scale = SG_SCALE_G_PER_L, .reading = 31.5, .blank_reading = 5.5, .meniscus_correction = 0.5,
+        .depth_at_zero_mm = 163.2, .depth_per_unit_mm = -1.64, .temp_c = 21.3, .elapsed_min = 4,
+        .particle_density_mg_m3 = 2.68, .specimen_dry_mass_g = 50.12, .suspension_volume_ml = 1000};
+    struct sg_hydrometer_point out;
+    struct sg_error err;
+    struct sg_hydrometer_input in = good;
+    in.elapsed_min = -2.5;
+    cr_assert_eq(sg_hydrometer_reduce(&in, &out, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "elapsed time -2.5 min must be positive (give the minutes") != NULL, "%s", err.msg);
+    in = good;
+    in.specimen_dry_mass_g = 0;
+    cr_assert_eq(sg_hydrometer_reduce(&in, &out, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "specimen dry mass 0 g must be positive (give the oven-dry mass") != NULL, "%s",
+              err.msg);
+    in = good;
+    in.suspension_volume_ml = -1000;
+    cr_assert_eq(sg_hydrometer_reduce(&in, &out, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "suspension volume -1000 mL must be positive (give it in millilitres") != NULL,
+              "%s", err.msg);
+    in = good;
+    in.particle_density_mg_m3 = 0.95;
+    cr_assert_eq(sg_hydrometer_reduce(&in, &out, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "must be greater than 1 (give it in Mg/m3") != NULL, "%s", err.msg);
+}

@@ -54,3 +54,36 @@ Test(pipette, errors)
     in.elapsed_min = -1;
     cr_assert_eq(sg_pipette_reduce(&in, &out, &err), SG_EINVAL);
 }
+
+/* Guards: each refused input says what to do (the "(what to do)" part of
+ * every message). Inputs invented. */
+Test(pipette, errors_say_what_to_do)
+{
+    const struct sg_pipette_input good = {
+        .standard = SG_STANDARD_NONE, .elapsed_min = 4.5, .temp_c = 20.6, .depth_mm = 100.0, .solids_g = 0.4822,
+        .pipette_volume_ml = 25.0, .suspension_volume_ml = 500.0, .dispersant_mass_g = 0.75,
+        .particle_density_mg_m3 = 2.71, .specimen_dry_mass_g = 20.014};
+    struct sg_pipette_point out;
+    struct sg_error err;
+    static const struct {
+        int field;
+        double v;
+        const char *frag;
+    } cases[] = {
+        {0, -1.5, "elapsed time -1.5 min must be positive (give the minutes since the start"},
+        {1, -100, "sampling depth -100 mm must be positive (give the depth below the surface"},
+        {2, 25.0, "suspension volume 25 mL must exceed the pipette volume 25 mL (the pipette samples"},
+        {3, 0.0, "specimen dry mass 0 g must be positive (give the oven-dry mass"},
+        {4, -0.75, "dispersant mass -0.75 g must not be negative (give the total mass of dispersant"},
+        {5, -0.01, "pipette solids -0.01 g must not be negative (give the dry mass of solids"},
+        {6, 0.9, "particle density 0.9 Mg/m3 must be greater than 1 (give it in Mg/m3"},
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        struct sg_pipette_input in = good;
+        double *const slot[] = {&in.elapsed_min, &in.depth_mm, &in.suspension_volume_ml, &in.specimen_dry_mass_g,
+                                &in.dispersant_mass_g, &in.solids_g, &in.particle_density_mg_m3};
+        *slot[cases[i].field] = cases[i].v;
+        cr_assert_eq(sg_pipette_reduce(&in, &out, &err), SG_EINVAL, "case %zu", i);
+        cr_assert(strstr(err.msg, cases[i].frag) != NULL, "case %zu: %s", i, err.msg);
+    }
+}

@@ -83,6 +83,15 @@ static void expect_first(const struct run *r, enum sg_status st, unsigned line, 
     cr_assert_str_eq(r->err.msg, e->msg);
 }
 
+/* Whether some diagnostic at line (0: any line) contains frag. */
+static bool has_diag(const struct run *r, unsigned line, const char *frag)
+{
+    for (size_t i = 0; i < r->diags.n; i++)
+        if ((line == 0 || r->diags.items[i].line == line) && strstr(r->diags.items[i].msg, frag) != NULL)
+            return true;
+    return false;
+}
+
 /* A complete hydrometer record (',' separator) that later tests mutate. */
 #define HEAD                                                                                       \
     "test,id,T1\n"                                                                                 \
@@ -316,7 +325,7 @@ Test(recordio, elapsed_time_not_a_number)
     parse(&r, HEAD "reading,abc,40,20\n");
     expect_first(&r, SG_EPARSE, 7, 9,
                  "elapsed time 'abc' is not a number (write minutes as a decimal number, e.g. 2.5)");
-    cr_assert_eq(r.diags.n, 1u); /* no validation after a syntax problem */
+    cr_assert_eq(r.diags.n, 1u); /* the refused row is not reported again as missing */
     release(&r);
     no_leaks();
 }
@@ -388,11 +397,14 @@ Test(recordio, thousands_separators)
     struct run r;
     parse(&r, "test;id;T4\ntest;sample_dry_mass_g;1.234,5\ntest;specimen_dry_mass_g;1,234,5\n");
     cr_assert_eq(r.st, SG_EPARSE);
-    cr_assert_eq(r.diags.n, 2u);
+    cr_assert_eq(r.diags.n, 4u);
     cr_assert_eq(r.diags.items[0].line, 2u);
     cr_assert_eq(r.diags.items[0].col, 24u);
     cr_assert_not_null(strstr(r.diags.items[0].msg, "'1.234,5' is not a number (remove thousands separators"));
     cr_assert_eq(r.diags.items[1].line, 3u);
+    /* then validation lists what is really missing, not the refused masses */
+    cr_assert(has_diag(&r, 1, "required key 'method' is missing"));
+    cr_assert(!has_diag(&r, 0, "'specimen_dry_mass_g' is missing"));
     release(&r);
     no_leaks();
 }
@@ -506,8 +518,11 @@ Test(recordio, words_and_dates)
     release(&r);
     parse(&r, "test,method,sedimentation\ntest,reading_scale,152H\n");
     expect_first(&r, SG_EPARSE, 1, 13, "method 'sedimentation' is not known (write hydrometer or pipette)");
-    cr_assert_eq(r.diags.n, 2u);
     cr_assert_not_null(strstr(r.diags.items[1].msg, "reading scale '152H' is not known"));
+    /* refused words are not reported missing; the keys not given are */
+    cr_assert(!has_diag(&r, 0, "'method' is missing"));
+    cr_assert(!has_diag(&r, 0, "'reading_scale' is missing"));
+    cr_assert(has_diag(&r, 1, "required key 'id' is missing"));
     release(&r);
     no_leaks();
 }
@@ -542,12 +557,17 @@ Test(recordio, validation_problems_follow_value_problems)
     no_leaks();
 }
 
-Test(recordio, syntax_problems_skip_validation)
+Test(recordio, a_refused_row_is_not_reported_missing_again)
 {
+    /* Guards the "one problem hides the others" fix: after a row with a
+     * problem the rest of the record is still validated, but the refused
+     * row's part is not called missing (no "no 'reading' rows"). */
     struct run r;
-    parse(&r, "test,id,T6\nreading,x,40,20\n");
+    parse(&r, "test,id,T6\ntest,method,hydrometer\nreading,x,40,20\n");
     cr_assert_eq(r.st, SG_EPARSE);
-    cr_assert_eq(r.diags.n, 1u); /* no "required key missing" noise */
+    expect_first(&r, SG_EPARSE, 3, 9, "elapsed time 'x' is not a number");
+    cr_assert(has_diag(&r, 1, "required key 'particle_density_mg_m3' is missing"));
+    cr_assert(!has_diag(&r, 0, "no 'reading' rows"));
     release(&r);
     no_leaks();
 }
@@ -582,6 +602,187 @@ Test(recordio, stops_after_100_problems)
     cr_assert_not_null(strstr(r.diags.items[100].msg, "too many problems: stopped after 100"));
     release(&r);
     free(text);
+    no_leaks();
+}
+
+/* ---- one problem does not hide the others ------------------------------------------ */
+
+/* Guards the audit's finding: an unknown key (a structural problem of one
+ * row) used to be the only problem reported; now that row is skipped and
+ * every other problem of the file follows, each at the wrong field. */
+Test(recordio, unknown_key_does_not_hide_value_problems)
+{
+    struct run r;
+    parse(&r, "test,id,T20\ntest,method,hydrometer\ntest,particle_density_mg_m3,9\n"
+              "test,specimen_dry_mass_g,50.12\ntest,reading_scale,g_per_l\ntest,depth_line_mm,163.2,-1.64\n"
+              "test,sample_dry_mass_g,1850.4\ntest,split_aperture_mm,2\ntest,liquid_limt_pct,41\n"
+              "sieve,20,-45.2\nsieve,2,112.9\nreading,2,36,20.5\nreading,1.5,33.5,20.5\n");
+    cr_assert_eq(r.st, SG_EPARSE);
+    cr_assert_eq(r.diags.n, 4u);
+    expect_first(&r, SG_EPARSE, 9, 6, "unknown key 'liquid_limt_pct' (did you mean 'liquid_limit_pct'?)");
+    const struct {
+        unsigned line, col;
+        const char *frag;
+    } want[] = {
+        {10, 10, "retained mass -45.2 g must not be negative (give"}, /* the mass's column, not the aperture's */
+        {3, 29, "particle density 9 Mg/m3 is outside 1.5-5 Mg/m3"},
+        {13, 9, "elapsed time 1.5 min is earlier than the previous row's 2 min"},
+    };
+    for (size_t i = 0; i < 3; i++) {
+        const struct sg_error *e = &r.diags.items[i + 1];
+        cr_assert(e->line == want[i].line && e->col == want[i].col, "diag %zu at %u:%u: %s", i + 1, e->line,
+                  e->col, e->msg);
+        cr_assert_not_null(strstr(e->msg, want[i].frag), "diag %zu: %s", i + 1, e->msg);
+    }
+    release(&r);
+    no_leaks();
+}
+
+/* Guards: an unknown row kind and a row with the wrong number of fields are
+ * skipped like an unknown key, and validation still runs. */
+Test(recordio, bad_rows_are_skipped_and_validation_goes_on)
+{
+    struct run r;
+    parse(&r, HEAD "readng,1,40,20\nreading,2,38\nreading,4,36,20\ntest,specimen_dry_mass_g,49.86,1\n"
+                   "test,suspension_volume_ml,0\n");
+    cr_assert_eq(r.st, SG_EPARSE);
+    cr_assert(has_diag(&r, 7, "unknown row kind 'readng'"));
+    cr_assert(has_diag(&r, 8, "row 'reading' has 3 fields"));
+    cr_assert(has_diag(&r, 10, "key 'specimen_dry_mass_g' is given twice"));
+    cr_assert(has_diag(&r, 11, "suspension volume 0 mL must be positive (give the volume"));
+    cr_assert_eq(r.rec.n_readings, 1u);
+    release(&r);
+    no_leaks();
+}
+
+/* Guards: an unknown key written where 'test,id' belongs leaves the record
+ * without an id, and that is reported too. */
+Test(recordio, unknown_key_in_place_of_id_reports_id_missing)
+{
+    struct run r;
+    parse(&r, "test,idd,T21\ntest,method,hydrometer\ntest,particle_density_mg_m3,2.67\n"
+              "test,specimen_dry_mass_g,49.86\ntest,reading_scale,g_per_l\ntest,depth_line_mm,163.2,-1.64\n"
+              "reading,1,40,20\n");
+    cr_assert_eq(r.st, SG_EPARSE);
+    cr_assert_eq(r.diags.n, 2u);
+    expect_first(&r, SG_EPARSE, 1, 6, "unknown key 'idd' (did you mean 'id'?)");
+    cr_assert_not_null(strstr(r.diags.items[1].msg, "required key 'id' is missing"));
+    release(&r);
+    no_leaks();
+}
+
+/* Guards: ids starting with '.' gave hidden output files ("...points.csv");
+ * they are refused, naming the characters allowed. '.' inside an id stays. */
+Test(recordio, ids_starting_with_a_dot_are_refused)
+{
+    static const char *const ids[] = {".", "..", ".KV-1"};
+    for (size_t i = 0; i < sizeof ids / sizeof ids[0]; i++) {
+        char text[512];
+        snprintf(text, sizeof text, "test,id,%s\n", ids[i]);
+        struct run r;
+        parse(&r, text);
+        char want[128];
+        snprintf(want, sizeof want, "test id '%s' starts with '.' (it names the output files", ids[i]);
+        expect_first(&r, SG_EPARSE, 1, 9, want);
+        cr_assert_not_null(strstr(r.err.msg, "letters, digits, '.', '_' or '-'"));
+        cr_assert(!has_diag(&r, 0, "'id' is missing"));
+        release(&r);
+    }
+    struct run r;
+    parse(&r, HEAD "reading,1,40,20\n");
+    cr_assert_eq(r.st, SG_OK, "%s", r.err.msg);
+    release(&r);
+    parse(&r, "test,id,KV.1.\n");
+    cr_assert(!has_diag(&r, 0, "test id"));
+    release(&r);
+    no_leaks();
+}
+
+/* Guards: numbers that a double cannot hold are refused at parse time with
+ * their location, instead of becoming 0 (1e-400), a subnormal (1e-320) or
+ * infinity (1e309) that surfaces later without a location. */
+Test(recordio, numbers_beyond_a_double_are_out_of_range)
+{
+    static const char *const cases[][2] = {
+        {"test,sample_dry_mass_g,1e-400\n", "sample dry mass '1e-400' is out of range: too near zero"},
+        {"test,sample_dry_mass_g,1e-320\n", "sample dry mass '1e-320' is out of range: too near zero"},
+        {"test,sample_dry_mass_g,-2.5e-310\n", "sample dry mass '-2.5e-310' is out of range: too near zero"},
+        {"test,sample_dry_mass_g,1e309\n", "sample dry mass '1e309' is out of range: too large"},
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        char text[512];
+        snprintf(text, sizeof text, "%s%s", HEAD, cases[i][0]);
+        struct run r;
+        parse(&r, text);
+        expect_first(&r, SG_EPARSE, 7, 24, cases[i][1]);
+        release(&r);
+    }
+    /* zero written with a large negative exponent is still zero */
+    struct run r;
+    parse(&r, HEAD "test,meniscus_correction,0.0e-400\nreading,1,40,20\n");
+    cr_assert_eq(r.st, SG_OK, "%s", r.err.msg);
+    cr_assert(r.rec.has_meniscus && r.rec.meniscus_correction == 0.0);
+    release(&r);
+    no_leaks();
+}
+
+/* Guards the accepted ranges as the reader applies them: a value out of
+ * range is reported at its own field (not the row's first) and the row is
+ * left out without a "no rows" message after it. */
+Test(recordio, row_values_out_of_range_are_located_at_their_field)
+{
+    struct run r;
+    parse(&r, HEAD "reading,1,40,55\nreading,2,1040,20,3000\nsieve,pan,-1\nfine_sieve,2000,1\n");
+    cr_assert_eq(r.st, SG_EINVAL);
+    expect_first(&r, SG_EINVAL, 7, 14, "temperature 55 C is outside 0-40 C (give it in degrees Celsius)");
+    cr_assert_eq(r.diags.items[1].col, 11u, "%s", r.diags.items[1].msg);
+    cr_assert_not_null(strstr(r.diags.items[1].msg, "hydrometer reading 1040 reading units is outside"));
+    cr_assert_eq(r.diags.items[2].col, 19u);
+    cr_assert_not_null(strstr(r.diags.items[2].msg, "blank reading 3000"));
+    cr_assert(has_diag(&r, 9, "retained mass -1 g must not be negative"));
+    cr_assert_eq(r.diags.items[3].col, 11u);
+    cr_assert(has_diag(&r, 10, "sieve aperture 2000 mm is above 1000 mm"));
+    cr_assert(!has_diag(&r, 0, "no 'reading' rows"));
+    /* the refused sieve row still needs the sample's mass and split */
+    cr_assert(has_diag(&r, 1, "'sample_dry_mass_g' is missing"));
+    release(&r);
+
+    parse(&r, "test,id,P3\ntest,method,pipette\ntest,particle_density_mg_m3,2.71\n"
+              "test,specimen_dry_mass_g,20.01\ntest,pipette_volume_ml,25\n"
+              "pipette,0,20.4,-100,-0.6481\npipette,1e6,20.4,100,0.6\n");
+    cr_assert_eq(r.st, SG_EINVAL);
+    expect_first(&r, SG_EINVAL, 6, 9, "elapsed time 0 min must be positive (give the minutes");
+    cr_assert(r.diags.items[1].col == 16u && strstr(r.diags.items[1].msg, "sampling depth -100 mm") != NULL);
+    cr_assert(r.diags.items[2].col == 21u && strstr(r.diags.items[2].msg, "pipette solids -0.6481 g") != NULL);
+    cr_assert(has_diag(&r, 7, "elapsed time 1e+06 min is above 100000 min"));
+    cr_assert(!has_diag(&r, 0, "no 'pipette' rows"));
+    release(&r);
+    no_leaks();
+}
+
+/* Guards: keys the record keeps no position for have upper limits too. */
+Test(recordio, uncertainties_and_limits_have_upper_bounds)
+{
+    struct run r;
+    parse(&r, HEAD "reading,1,40,20\ntest,u_temp_c,100\ntest,natural_moisture_pct,2500\n");
+    cr_assert_eq(r.st, SG_EINVAL);
+    expect_first(&r, SG_EINVAL, 8, 15, "temperature uncertainty 100 degrees Celsius is above 40 degrees Celsius");
+    cr_assert(has_diag(&r, 9, "natural moisture content 2500 percent is above 2000 percent"));
+    release(&r);
+    no_leaks();
+}
+
+/* Guards the choice for 'fine_sieve,pan': accepted and kept (aperture 0),
+ * as the whole sample's pan is, for the specimen's mass balance. */
+Test(recordio, fine_sieve_pan_is_kept)
+{
+    struct run r;
+    parse(&r, HEAD "reading,1,40,20\nfine_sieve,0.063,4.48\nfine_sieve,pan,39.36\n");
+    cr_assert_eq(r.st, SG_OK, "%s", r.err.msg);
+    cr_assert_eq(r.rec.n_fine_sieve, 2u);
+    cr_assert_float_eq(r.rec.fine_sieve[1].aperture_mm, SG_SIEVE_PAN_MM, TOL);
+    cr_assert_float_eq(r.rec.fine_sieve[1].retained_g, 39.36, TOL);
+    release(&r);
     no_leaks();
 }
 
@@ -624,11 +825,13 @@ Test(recordio, unterminated_quote_mid_file_is_located_and_parsing_goes_on)
     struct run r;
     parse(&r, "test,id,\"T10\ntest,method,\"hydrometer\"\nreading,1,\"40\",20\nreadng,2,40,20\n");
     cr_assert_eq(r.st, SG_EPARSE);
-    cr_assert_eq(r.diags.n, 2u);
     expect_first(&r, SG_EPARSE, 1, 9, "quoted field is not closed on line 1");
     cr_assert_eq(r.rec.method, SG_METHOD_HYDROMETER); /* line 2 still read */
     cr_assert_eq(r.rec.n_readings, 1u);
     cr_assert_eq(r.diags.items[1].line, 4u);
+    /* the broken row was a test id: not reported missing again */
+    cr_assert(!has_diag(&r, 0, "'id' is missing"));
+    cr_assert(has_diag(&r, 1, "required key 'specimen_dry_mass_g' is missing"));
     release(&r);
     parse(&r, "test,id,\"T10\r\ntest,method,hydrometer\r\n");
     expect_first(&r, SG_EPARSE, 1, 9, "quoted field is not closed on line 1");
@@ -734,8 +937,7 @@ Test(recordio, very_long_lines)
     memset(text + n, ',', big);
     n += big;
     parse_text(&r, text, n);
-    cr_assert_eq(r.st, SG_EPARSE);
-    cr_assert_eq(r.diags.n, 1u);
+    expect_first(&r, SG_EPARSE, 1, 1, "row 'reading' has 1 field, expected 4 or 5");
     release(&r);
     /* a row of many non-empty fields */
     n = (size_t)sprintf(text, "reading");

@@ -143,3 +143,17 @@ Test(sieve, invalid_values)
     cr_assert_eq(sg_sieve_reduce(ok, 1, -3.0, out, &e), SG_EINVAL);
     cr_assert_eq(sg_sieve_reduce(ok, 1, NAN, out, NULL), SG_EINVAL); /* err may be NULL */
 }
+
+/* Guards: the refused masses say what to do (the "(what to do)" part). */
+Test(sieve, errors_say_what_to_do)
+{
+    struct sg_sieve_line out[1];
+    struct sg_error e;
+    const struct sg_sieve_row neg[] = {row(0.425, -12.37, 9)};
+    cr_assert_eq(sg_sieve_reduce(neg, 1, 500.0, out, &e), SG_EINVAL);
+    cr_assert(strstr(e.msg, "retained mass -12.37 g must not be negative (give the dry mass retained") != NULL, "%s",
+              e.msg);
+    const struct sg_sieve_row ok[] = {row(0.425, 12.37, 9)};
+    cr_assert_eq(sg_sieve_reduce(ok, 1, -500.0, out, &e), SG_EINVAL);
+    cr_assert(strstr(e.msg, "dry mass -500 g must be positive (give the oven-dry mass in grams") != NULL, "%s", e.msg);
+}

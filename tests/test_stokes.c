@@ -91,3 +91,16 @@ Test(stokes, invalid_inputs)
     cr_assert_eq(sg_stokes_diameter_m(NAN, 0.1, 1650.0, 60.0, &d, NULL), SG_EINVAL);
     cr_assert_eq(sg_stokes_time_s(1e-3, 0.1, 1650.0, 0.0, &d, &err), SG_EINVAL);
 }
+
+/* Guards: a non-positive input says where to look (the "(what to do)" part). */
+Test(stokes, errors_say_what_to_do)
+{
+    struct sg_error err;
+    double d = 0;
+    cr_assert_eq(sg_stokes_diameter_m(1.002e-3, 0.1632, 1650.0, -30.0, &d, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "elapsed time -30 s must be a positive number (check the record value or option") !=
+                  NULL,
+              "%s", err.msg);
+    cr_assert_eq(sg_stokes_time_s(1.002e-3, 0.1632, 1650.0, 0.0, &d, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "diameter 0 m must be a positive number (check") != NULL, "%s", err.msg);
+}

@@ -24,10 +24,17 @@
  * as far as the text allows and, whatever the status, the caller releases it
  * (sg_record_release). Every problem found is appended to diags (may be NULL)
  * with its line and column (1-based; the column counts characters, not bytes,
- * after a leading byte-order mark); the first problem also goes to err (may
- * be NULL; cleared on entry). When no syntax problem was found the record is
- * also checked with sg_record_validate(), so its completeness problems are
- * listed too.
+ * after a leading byte-order mark; the column of the field that is wrong);
+ * the first problem also goes to err (may be NULL; cleared on entry).
+ *
+ * A row with a problem (unknown kind or key, wrong number of fields, a value
+ * that is not a number or is outside its accepted range, a broken quote) is
+ * reported and left out, and reading goes on; the parts of the record such
+ * rows would have given are noted in rec->refused. The record is then
+ * checked with sg_record_validate(), so every problem of the file is listed
+ * in one pass, without a refused part being called missing as well. Only a
+ * text that is not UTF-8 (one message), the size and row limits and
+ * SG_RECORDIO_MAX_DIAGS problems stop the reading early.
  *
  * Accepted text: UTF-8 (a leading BOM is skipped), LF or CRLF line ends,
  * comment lines starting with '#' after optional blanks, blank lines. The
@@ -38,11 +45,14 @@
  * a row of empty fields counts as blank; an empty field before a value is an
  * error. A quoted field must close on the line where it opens. Numbers are
  * plain decimals (sign, digits, optional fraction and exponent) in the C
- * locale's notation; the program must not change LC_NUMERIC.
+ * locale's notation; the program must not change LC_NUMERIC. A number too
+ * large for a double, or not zero but nearer zero than the smallest normal
+ * double (about 2.2e-308), is refused as out of range rather than read as
+ * infinity, 0 or a subnormal.
  *
  * Returns SG_OK; SG_EPARSE when the text has syntax, format or value-text
- * problems (the record is then not validated); SG_EINVAL when it parsed but
- * has value or completeness problems; SG_ELIMIT when len exceeds
+ * problems (whatever else was found); SG_EINVAL when it parsed but has value
+ * or completeness problems; SG_ELIMIT when len exceeds
  * SG_RECORDIO_MAX_BYTES or the rows exceed SG_RECORDIO_MAX_ROWS; SG_ENOMEM. */
 enum sg_status sg_recordio_parse(const char *text, size_t len, struct sg_record *rec,
                                  struct sg_diag_list *diags, struct sg_error *err);

@@ -6,6 +6,7 @@
 #include <csv.h>
 #include <errno.h>
 #include <fcntl.h>
+#include <float.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdbool.h>
@@ -59,50 +60,75 @@ enum key {
 struct keyinfo {
     const char *name;
     enum vtype type;
-    bool nonneg; /* the value must be >= 0 (checked here; validation does not) */
+    /* the value must be >= 0 and at most max (checked here: the record keeps
+     * no position for these keys, so validation could not locate a problem) */
+    bool nonneg;
     struct numspec num;
+    double max;
+    unsigned part; /* enum sg_record_part refused with the row, 0 if validation does not need to know */
 };
 
+/* Upper limits of the keys checked here: an uncertainty is at most the
+ * accepted range of its quantity (record.h). */
+#define U_TEMP_MAX_C (SG_RECORD_TEMP_MAX_C - SG_RECORD_TEMP_MIN_C)
+#define U_READING_MAX (2.0 * SG_RECORD_READING_ABS_MAX)
+
 static const struct keyinfo KEYS[K_COUNT] = {
-    [K_ID] = {"id", V_ID, false, {0}},
-    [K_METHOD] = {"method", V_METHOD, false, {0}},
-    [K_DATE] = {"date", V_DATE, false, {0}},
+    [K_ID] = {"id", V_ID, false, {0}, 0, SG_PART_ID},
+    [K_METHOD] = {"method", V_METHOD, false, {0}, 0, SG_PART_METHOD},
+    [K_DATE] = {"date", V_DATE, false, {0}, 0, 0},
     [K_PARTICLE_DENSITY] = {"particle_density_mg_m3", V_NUM, false,
-                            {"particle density", "Mg/m3", "2.65"}},
-    [K_SAMPLE_MASS] = {"sample_dry_mass_g", V_NUM, false, {"sample dry mass", "grams", "1523.4"}},
-    [K_SPLIT_APERTURE] = {"split_aperture_mm", V_NUM, false, {"split aperture", "millimetres", "2"}},
-    [K_SPECIMEN_MASS] = {"specimen_dry_mass_g", V_NUM, false, {"specimen dry mass", "grams", "50.12"}},
-    [K_VOLUME] = {"suspension_volume_ml", V_NUM, false, {"suspension volume", "millilitres", "1000"}},
-    [K_HYDROMETER] = {"hydrometer", V_NAME, false, {0}},
-    [K_CYLINDER] = {"cylinder", V_NAME, false, {0}},
-    [K_THERMOMETER] = {"thermometer", V_NAME, false, {0}},
-    [K_PIPETTE_ID] = {"pipette_id", V_NAME, false, {0}},
-    [K_SCALE] = {"reading_scale", V_SCALE, false, {0}},
-    [K_DEPTH_LINE] = {"depth_line_mm", V_NUM2, false, {"effective depth line", "millimetres", "163.2"}},
+                            {"particle density", "Mg/m3", "2.65"}, 0, SG_PART_PARTICLE_DENSITY},
+    [K_SAMPLE_MASS] = {"sample_dry_mass_g", V_NUM, false, {"sample dry mass", "grams", "1523.4"}, 0,
+                       SG_PART_SAMPLE_MASS},
+    [K_SPLIT_APERTURE] = {"split_aperture_mm", V_NUM, false, {"split aperture", "millimetres", "2"}, 0,
+                          SG_PART_SPLIT_APERTURE},
+    [K_SPECIMEN_MASS] = {"specimen_dry_mass_g", V_NUM, false, {"specimen dry mass", "grams", "50.12"}, 0,
+                         SG_PART_SPECIMEN_MASS},
+    [K_VOLUME] = {"suspension_volume_ml", V_NUM, false, {"suspension volume", "millilitres", "1000"}, 0,
+                  SG_PART_VOLUME},
+    [K_HYDROMETER] = {"hydrometer", V_NAME, false, {0}, 0, SG_PART_HYDROMETER},
+    [K_CYLINDER] = {"cylinder", V_NAME, false, {0}, 0, 0},
+    [K_THERMOMETER] = {"thermometer", V_NAME, false, {0}, 0, 0},
+    [K_PIPETTE_ID] = {"pipette_id", V_NAME, false, {0}, 0, SG_PART_PIPETTE_ID},
+    [K_SCALE] = {"reading_scale", V_SCALE, false, {0}, 0, SG_PART_SCALE},
+    [K_DEPTH_LINE] = {"depth_line_mm", V_NUM2, false, {"effective depth line", "millimetres", "163.2"}, 0,
+                      SG_PART_DEPTH_LINE},
     [K_MENISCUS] = {"meniscus_correction", V_NUM, false,
-                    {"meniscus correction", "reading units", "0.5"}},
+                    {"meniscus correction", "reading units", "0.5"}, 0, 0},
     [K_COMPOSITE] = {"composite_correction", V_NUM, false,
-                     {"composite correction", "reading units", "5.5"}},
-    [K_PIPETTE_VOLUME] = {"pipette_volume_ml", V_NUM, false, {"pipette volume", "millilitres", "25"}},
-    [K_DISPERSANT] = {"dispersant_mass_g", V_NUM, false, {"dispersant mass", "grams", "2.5"}},
-    [K_LIQUID_LIMIT] = {"liquid_limit_pct", V_NUM, true, {"liquid limit", "percent", "42"}},
-    [K_PLASTIC_LIMIT] = {"plastic_limit_pct", V_NUM, true, {"plastic limit", "percent", "21"}},
+                     {"composite correction", "reading units", "5.5"}, 0, 0},
+    [K_PIPETTE_VOLUME] = {"pipette_volume_ml", V_NUM, false, {"pipette volume", "millilitres", "25"}, 0,
+                          SG_PART_PIPETTE_VOLUME},
+    [K_DISPERSANT] = {"dispersant_mass_g", V_NUM, false, {"dispersant mass", "grams", "2.5"}, 0, 0},
+    [K_LIQUID_LIMIT] = {"liquid_limit_pct", V_NUM, true, {"liquid limit", "percent", "42"},
+                        SG_RECORD_WATER_PCT_MAX, 0},
+    [K_PLASTIC_LIMIT] = {"plastic_limit_pct", V_NUM, true, {"plastic limit", "percent", "21"},
+                         SG_RECORD_WATER_PCT_MAX, 0},
     [K_NATURAL_MOISTURE] = {"natural_moisture_pct", V_NUM, true,
-                            {"natural moisture content", "percent", "18.5"}},
-    [K_STANDARD] = {"standard", V_STANDARD, false, {0}},
-    [K_U_READING] = {"u_reading", V_NUM, true, {"reading uncertainty", "reading units", "0.25"}},
-    [K_U_TEMP] = {"u_temp_c", V_NUM, true, {"temperature uncertainty", "degrees Celsius", "0.2"}},
-    [K_U_ELAPSED] = {"u_elapsed_min", V_NUM, true, {"elapsed-time uncertainty", "minutes", "0.05"}},
-    [K_U_MASS] = {"u_mass_g", V_NUM, true, {"mass uncertainty", "grams", "0.01"}},
+                            {"natural moisture content", "percent", "18.5"}, SG_RECORD_WATER_PCT_MAX, 0},
+    [K_STANDARD] = {"standard", V_STANDARD, false, {0}, 0, 0},
+    [K_U_READING] = {"u_reading", V_NUM, true, {"reading uncertainty", "reading units", "0.25"}, U_READING_MAX,
+                     0},
+    [K_U_TEMP] = {"u_temp_c", V_NUM, true, {"temperature uncertainty", "degrees Celsius", "0.2"}, U_TEMP_MAX_C,
+                  0},
+    [K_U_ELAPSED] = {"u_elapsed_min", V_NUM, true, {"elapsed-time uncertainty", "minutes", "0.05"},
+                     SG_RECORD_ELAPSED_MAX_MIN, 0},
+    [K_U_MASS] = {"u_mass_g", V_NUM, true, {"mass uncertainty", "grams", "0.01"}, SG_RECORD_MASS_MAX_G, 0},
     [K_U_PARTICLE_DENSITY] = {"u_particle_density_mg_m3", V_NUM, true,
-                              {"particle density uncertainty", "Mg/m3", "0.02"}},
-    [K_U_BLANK] = {"u_blank_reading", V_NUM, true, {"blank reading uncertainty", "reading units", "0.25"}},
+                              {"particle density uncertainty", "Mg/m3", "0.02"},
+                              SG_RECORD_PARTICLE_DENSITY_MAX_MG_M3, 0},
+    [K_U_BLANK] = {"u_blank_reading", V_NUM, true, {"blank reading uncertainty", "reading units", "0.25"},
+                   U_READING_MAX, 0},
     [K_U_MENISCUS] = {"u_meniscus_correction", V_NUM, true,
-                      {"meniscus correction uncertainty", "reading units", "0.1"}},
+                      {"meniscus correction uncertainty", "reading units", "0.1"}, U_READING_MAX, 0},
     [K_U_PIPETTE_VOLUME] = {"u_pipette_volume_ml", V_NUM, true,
-                            {"pipette volume uncertainty", "millilitres", "0.03"}},
-    [K_U_SOLIDS] = {"u_solids_g", V_NUM, true, {"pipette solids uncertainty", "grams", "0.0002"}},
-    [K_U_DEPTH] = {"u_depth_mm", V_NUM, true, {"sampling depth uncertainty", "millimetres", "1"}},
+                            {"pipette volume uncertainty", "millilitres", "0.03"},
+                            SG_RECORD_PIPETTE_VOLUME_MAX_ML, 0},
+    [K_U_SOLIDS] = {"u_solids_g", V_NUM, true, {"pipette solids uncertainty", "grams", "0.0002"},
+                    SG_RECORD_MASS_MAX_G, 0},
+    [K_U_DEPTH] = {"u_depth_mm", V_NUM, true, {"sampling depth uncertainty", "millimetres", "1"},
+                   SG_RECORD_DEPTH_MAX_MM, 0},
 };
 
 /* ---- row kinds ------------------------------------------------------------------- */
@@ -113,14 +139,15 @@ struct kindinfo {
     const char *name;
     size_t min_fields, max_fields; /* the kind included */
     const char *expected;          /* "expected ..." in the field-count message */
+    unsigned part;                 /* enum sg_record_part of a refused row (test rows: by key) */
 };
 
 static const struct kindinfo KINDS[R_COUNT] = {
-    [R_TEST] = {"test", 3, (size_t)-1, "3 or more (key, value[, value])"},
-    [R_SIEVE] = {"sieve", 3, 3, "3 (aperture_mm, retained_g)"},
-    [R_FINE_SIEVE] = {"fine_sieve", 3, 3, "3 (aperture_mm, retained_g)"},
-    [R_READING] = {"reading", 4, 5, "4 or 5 (elapsed_min, reading, temp_c[, blank_reading])"},
-    [R_PIPETTE] = {"pipette", 5, 5, "5 (elapsed_min, temp_c, depth_mm, solids_g)"},
+    [R_TEST] = {"test", 3, (size_t)-1, "3 or more (key, value[, value])", 0},
+    [R_SIEVE] = {"sieve", 3, 3, "3 (aperture_mm, retained_g)", SG_PART_SIEVE},
+    [R_FINE_SIEVE] = {"fine_sieve", 3, 3, "3 (aperture_mm, retained_g)", SG_PART_FINE_SIEVE},
+    [R_READING] = {"reading", 4, 5, "4 or 5 (elapsed_min, reading, temp_c[, blank_reading])", SG_PART_READING},
+    [R_PIPETTE] = {"pipette", 5, 5, "5 (elapsed_min, temp_c, depth_mm, solids_g)", SG_PART_PIPETTE},
 };
 
 static const struct numspec NS_ELAPSED = {"elapsed time", "minutes", "2.5"};
@@ -313,7 +340,12 @@ static void fatal(struct rp *p, enum sg_status code)
 
 /* ---- numbers --------------------------------------------------------------------- */
 
-enum numerr { NUM_OK, NUM_EMPTY, NUM_WORD, NUM_HEX, NUM_UNIT, NUM_GROUPING, NUM_COMMA, NUM_RANGE, NUM_BAD };
+enum numerr {
+    NUM_OK, NUM_EMPTY, NUM_WORD, NUM_HEX, NUM_UNIT, NUM_GROUPING, NUM_COMMA,
+    NUM_TOO_LARGE, /* beyond the largest double: would be read as infinity */
+    NUM_TOO_SMALL, /* not zero, but nearer to zero than the smallest normal double: would be read as 0 or lose its digits */
+    NUM_BAD
+};
 
 static bool is_digit(unsigned char c)
 {
@@ -435,6 +467,16 @@ static bool fast_decimal(const char *s, double *out)
     return true;
 }
 
+/* Whether the mantissa of a number's text (before any exponent) has a digit
+ * other than 0. */
+static bool nonzero_mantissa(const char *s)
+{
+    for (; *s != '\0' && *s != 'e' && *s != 'E'; s++)
+        if (*s >= '1' && *s <= '9')
+            return true;
+    return false;
+}
+
 /* Parses a plain decimal number (field already trimmed). With decimal_comma
  * one ',' is taken as the decimal mark. */
 static enum numerr parse_number(const struct field *f, bool decimal_comma, double *out)
@@ -486,13 +528,14 @@ static enum numerr parse_number(const struct field *f, bool decimal_comma, doubl
         return NUM_BAD;
     }
 
-    errno = 0;
     char *end = NULL;
     const double v = strtod(buf, &end);
     if (end != buf + k)
         return NUM_BAD;
-    if (!isfinite(v) || (errno == ERANGE && fabs(v) > 1.0))
-        return NUM_RANGE;
+    if (!isfinite(v))
+        return NUM_TOO_LARGE;
+    if (fabs(v) < DBL_MIN && nonzero_mantissa(buf))
+        return NUM_TOO_SMALL; /* 1e-400 would silently be 0, 1e-320 a subnormal */
     *out = v;
     return NUM_OK;
 }
@@ -533,8 +576,16 @@ static bool number(struct rp *p, const struct field *f, const struct numspec *ns
                 "mark and no thousands separator, e.g. %s; or separate the fields with ';')",
                 ns->what, t, ns->example);
         break;
-    case NUM_RANGE:
-        problem(p, SG_EPARSE, f->line, f->col, "%s '%s' is out of range (write %s as a decimal number, e.g. %s)",
+    case NUM_TOO_LARGE:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' is out of range: too large to be held as a number (check the exponent; write %s as a "
+                "decimal number, e.g. %s)",
+                ns->what, t, ns->unit_words, ns->example);
+        break;
+    case NUM_TOO_SMALL:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' is out of range: too near zero to be held as a number (check the exponent; write %s "
+                "as a decimal number, e.g. %s)",
                 ns->what, t, ns->unit_words, ns->example);
         break;
     case NUM_WORD:
@@ -549,8 +600,9 @@ static bool number(struct rp *p, const struct field *f, const struct numspec *ns
 
 /* ---- names and words ------------------------------------------------------------- */
 
-/* 0 ok, 1 empty, 2 too long, 3 a character outside [A-Za-z0-9._-]. */
-static int check_name(const struct field *f)
+/* 0 ok, 1 empty, 2 too long, 3 a character outside [A-Za-z0-9._-], 4 a
+ * leading '.' (only where file_name asks for it). */
+static int check_name(const struct field *f, bool file_name)
 {
     if (f->len == 0)
         return 1;
@@ -561,13 +613,17 @@ static int check_name(const struct field *f)
         if (!(is_letter(c) || is_digit(c) || c == '.' || c == '_' || c == '-'))
             return 3;
     }
-    return 0;
+    return file_name && f->text[0] == '.' ? 4 : 0;
 }
 
-static bool name_value(struct rp *p, const struct field *f, const char *what, const char *hint, char *dst)
+/* file_name: the name is used for output files (the test id), so a leading
+ * '.' is refused: ".", ".." and ".x" would give hidden files such as
+ * "...points.csv", or name a folder. */
+static bool name_value(struct rp *p, const struct field *f, const char *what, const char *hint, bool file_name,
+                       char *dst)
 {
     char t[SHOW_BUF];
-    switch (check_name(f)) {
+    switch (check_name(f, file_name)) {
     case 0:
         memcpy(dst, f->text, f->len + 1); /* f->len < SG_NAME_MAX == SG_ID_MAX */
         return true;
@@ -577,6 +633,12 @@ static bool name_value(struct rp *p, const struct field *f, const char *what, co
     case 2:
         problem(p, SG_EPARSE, f->line, f->col, "%s '%s' is %zu characters long, at most %d are allowed (%s)",
                 what, show(f->text, t), f->len, SG_NAME_MAX - 1, hint);
+        return false;
+    case 4:
+        problem(p, SG_EPARSE, f->line, f->col,
+                "%s '%s' starts with '.' (it names the output files, which would be hidden: start it with a "
+                "letter or digit, then letters, digits, '.', '_' or '-', e.g. BH1-2.5)",
+                what, show(f->text, t));
         return false;
     default:
         problem(p, SG_EPARSE, f->line, f->col,
@@ -675,6 +737,41 @@ static size_t lookup(const char *word, const void *table, size_t stride, size_t 
     return n;
 }
 
+/* The current row, its problem reported, is left out of the record: notes
+ * the part of the record it would have given (from its kind and, for a test
+ * row, its key, as far as they were read) so that validation does not also
+ * call that part missing. An unknown kind or key notes nothing: then the
+ * part the row was meant to give is reported missing too, which is true. */
+static void refuse_row(struct rp *p)
+{
+    if (p->nf == 0 || p->f[0].len == 0)
+        return;
+    size_t near = 0;
+    const size_t ki = lookup(p->f[0].text, KINDS, sizeof KINDS[0], R_COUNT, &near);
+    if (ki == R_COUNT)
+        return;
+    if (ki != R_TEST) {
+        p->rec->refused |= KINDS[ki].part;
+        return;
+    }
+    if (p->nf < 2 || p->f[1].len == 0)
+        return;
+    const size_t k = lookup(p->f[1].text, KEYS, sizeof KEYS[0], K_COUNT, &near);
+    if (k < K_COUNT)
+        p->rec->refused |= KEYS[k].part;
+}
+
+/* Checks a row's value against its accepted range (record.h), reporting a
+ * problem at the value's own field. */
+static bool in_range(struct rp *p, enum sg_record_value which, double v, const struct field *f)
+{
+    struct sg_error e;
+    if (sg_record_check_value(which, v, pos_of(f), &e) == SG_OK)
+        return true;
+    add_problem(p, &e);
+    return false;
+}
+
 static void test_row(struct rp *p)
 {
     const struct field *fk = &p->f[1];
@@ -705,12 +802,14 @@ static void test_row(struct rp *p)
                 "key '%s' needs two values, 1 given (write 'test,depth_line_mm,<depth at reading 0 in mm>,"
                 "<change per reading unit in mm>')",
                 ko->name);
+        p->rec->refused |= ko->part;
         return;
     }
     if (nvals > want) {
         const struct field *fx = &p->f[2 + want];
         problem(p, SG_EPARSE, fx->line, fx->col, "key '%s' takes %s value, %zu given (remove the extra fields)",
                 ko->name, want == 1 ? "one" : "two", nvals);
+        p->rec->refused |= ko->part;
         return;
     }
 
@@ -723,13 +822,13 @@ static void test_row(struct rp *p)
     bool ok = false;
     switch (ko->type) {
     case V_ID:
-        ok = name_value(p, fv, "test id", "it names the output files; e.g. BH1-2.5", r->id);
+        ok = name_value(p, fv, "test id", "it names the output files; e.g. BH1-2.5", true, r->id);
         break;
     case V_NAME: {
         static const char *const what[] = {"hydrometer ID", "cylinder ID", "thermometer ID", "pipette ID"};
         char *const dst[] = {r->hydrometer, r->cylinder, r->thermometer, r->pipette_id};
         const size_t w = k == K_HYDROMETER ? 0 : k == K_CYLINDER ? 1 : k == K_THERMOMETER ? 2 : 3;
-        ok = name_value(p, fv, what[w], "use the instrument's ID in the calibration register", dst[w]);
+        ok = name_value(p, fv, what[w], "use the instrument's ID in the calibration register", false, dst[w]);
         break;
     }
     case V_METHOD:
@@ -785,8 +884,13 @@ static void test_row(struct rp *p)
         double v = 0.0;
         if (number(p, fv, &ko->num, &v)) {
             if (ko->nonneg && v < 0.0) {
-                problem(p, SG_EINVAL, fv->line, fv->col, "%s %g %s must not be negative", ko->num.what, v,
-                        ko->num.unit_words);
+                problem(p, SG_EINVAL, fv->line, fv->col,
+                        "%s %g %s must not be negative (give it in %s, 0 or more, e.g. %s)", ko->num.what, v,
+                        ko->num.unit_words, ko->num.unit_words, ko->num.example);
+            } else if (ko->nonneg && v > ko->max) {
+                problem(p, SG_EINVAL, fv->line, fv->col,
+                        "%s %g %s is above %g %s, the largest accepted (give it in %s, e.g. %s)", ko->num.what, v,
+                        ko->num.unit_words, ko->max, ko->num.unit_words, ko->num.unit_words, ko->num.example);
             } else {
                 *num = v;
                 ok = true;
@@ -800,52 +904,65 @@ static void test_row(struct rp *p)
             *has = true;
         if (pos != NULL)
             *pos = pos_of(fv);
+    } else {
+        p->rec->refused |= ko->part;
     }
 }
 
+/* Row values are checked against their accepted ranges here, where each
+ * field's column is known, so that a problem is located at the value that
+ * is wrong; a row with a problem is left out (and noted as refused).
+ * sg_record_validate() checks the same ranges for records built in code. */
 static void sieve_row(struct rp *p, bool fine)
 {
     const struct field *fa = &p->f[1], *fm = &p->f[2];
     struct sg_sieve_row row = {.pos = pos_of(fa)};
     bool ok = true;
-    if (same_word(fa->text, "pan")) {
+    if (same_word(fa->text, "pan"))
         row.aperture_mm = SG_SIEVE_PAN_MM;
-    } else if (number(p, fa, &NS_APERTURE, &row.aperture_mm)) {
-        if (!(row.aperture_mm > 0.0)) {
-            problem(p, SG_EINVAL, fa->line, fa->col, "sieve aperture %g mm must be positive (write 'pan' for the pan)",
-                    row.aperture_mm);
-            ok = false;
-        }
-    } else {
-        ok = false;
-    }
-    ok = number(p, fm, &NS_RETAINED, &row.retained_g) && ok;
-    if (ok && (fine ? sg_record_add_fine_sieve(p->rec, row) : sg_record_add_sieve(p->rec, row)) != SG_OK)
+    else
+        ok = number(p, fa, &NS_APERTURE, &row.aperture_mm) &&
+             in_range(p, SG_VALUE_SIEVE_APERTURE, row.aperture_mm, fa);
+    ok = number(p, fm, &NS_RETAINED, &row.retained_g) && in_range(p, SG_VALUE_RETAINED_MASS, row.retained_g, fm) &&
+         ok;
+    if (!ok)
+        p->rec->refused |= fine ? SG_PART_FINE_SIEVE : SG_PART_SIEVE;
+    else if ((fine ? sg_record_add_fine_sieve(p->rec, row) : sg_record_add_sieve(p->rec, row)) != SG_OK)
         fatal(p, SG_ENOMEM);
 }
 
 static void reading_row(struct rp *p)
 {
     struct sg_reading_row row = {.pos = pos_of(&p->f[1])};
-    bool ok = number(p, &p->f[1], &NS_ELAPSED, &row.elapsed_min);
-    ok = number(p, &p->f[2], &NS_READING, &row.reading) && ok;
-    ok = number(p, &p->f[3], &NS_TEMP, &row.temp_c) && ok;
+    bool ok = number(p, &p->f[1], &NS_ELAPSED, &row.elapsed_min) &&
+              in_range(p, SG_VALUE_ELAPSED, row.elapsed_min, &p->f[1]);
+    ok = number(p, &p->f[2], &NS_READING, &row.reading) && in_range(p, SG_VALUE_READING, row.reading, &p->f[2]) &&
+         ok;
+    ok = number(p, &p->f[3], &NS_TEMP, &row.temp_c) && in_range(p, SG_VALUE_TEMP, row.temp_c, &p->f[3]) && ok;
     if (p->nf_eff == 5) {
         row.has_blank = true;
-        ok = number(p, &p->f[4], &NS_BLANK, &row.blank_reading) && ok;
+        ok = number(p, &p->f[4], &NS_BLANK, &row.blank_reading) &&
+             in_range(p, SG_VALUE_BLANK, row.blank_reading, &p->f[4]) && ok;
     }
-    if (ok && sg_record_add_reading(p->rec, row) != SG_OK)
+    if (!ok)
+        p->rec->refused |= SG_PART_READING;
+    else if (sg_record_add_reading(p->rec, row) != SG_OK)
         fatal(p, SG_ENOMEM);
 }
 
 static void pipette_row(struct rp *p)
 {
     struct sg_pipette_row row = {.pos = pos_of(&p->f[1])};
-    bool ok = number(p, &p->f[1], &NS_ELAPSED, &row.elapsed_min);
-    ok = number(p, &p->f[2], &NS_TEMP, &row.temp_c) && ok;
-    ok = number(p, &p->f[3], &NS_DEPTH, &row.depth_mm) && ok;
-    ok = number(p, &p->f[4], &NS_SOLIDS, &row.solids_g) && ok;
-    if (ok && sg_record_add_pipette(p->rec, row) != SG_OK)
+    bool ok = number(p, &p->f[1], &NS_ELAPSED, &row.elapsed_min) &&
+              in_range(p, SG_VALUE_ELAPSED, row.elapsed_min, &p->f[1]);
+    ok = number(p, &p->f[2], &NS_TEMP, &row.temp_c) && in_range(p, SG_VALUE_TEMP, row.temp_c, &p->f[2]) && ok;
+    ok = number(p, &p->f[3], &NS_DEPTH, &row.depth_mm) &&
+         in_range(p, SG_VALUE_SAMPLING_DEPTH, row.depth_mm, &p->f[3]) && ok;
+    ok = number(p, &p->f[4], &NS_SOLIDS, &row.solids_g) && in_range(p, SG_VALUE_SOLIDS, row.solids_g, &p->f[4]) &&
+         ok;
+    if (!ok)
+        p->rec->refused |= SG_PART_PIPETTE;
+    else if (sg_record_add_pipette(p->rec, row) != SG_OK)
         fatal(p, SG_ENOMEM);
 }
 
@@ -874,6 +991,7 @@ static void process_row(struct rp *p)
                     "line %u uses '%c' as the separator but line %u set '%c' (the first data row decides; "
                     "use one separator in the whole file)",
                     p->f[i].line, p->other, p->delim_line, p->delim);
+            refuse_row(p);
             return;
         }
     }
@@ -901,6 +1019,7 @@ static void process_row(struct rp *p)
         const struct field *at = n > kd->max_fields && kd->max_fields < ROW_FIELDS_MAX ? &p->f[kd->max_fields] : f0;
         problem(p, SG_EPARSE, at->line, at->col, "row '%s' has %zu field%s, expected %s", kd->name, n,
                 n == 1 ? "" : "s", kd->expected);
+        refuse_row(p);
         return;
     }
     switch ((enum kind)ki) {
@@ -1116,6 +1235,7 @@ static bool feed(struct rp *p, struct cursor at, size_t len)
     else
         problem(p, SG_EPARSE, at.line, at.col,
                 "quote character inside a field (remove it, or quote the whole field and double the quotes inside)");
+    refuse_row(p);
     p->cur = at;
     skip_line(&p->cur, p->s, p->n);
     reset_csv(p);
@@ -1185,15 +1305,18 @@ static void split_rows(struct rp *p)
         if ((c == '\r' || c == '\n') && p->csv.quoted) {
             problem(p, SG_EPARSE, p->fline, p->fcol,
                     "quoted field is not closed on line %u (add the closing '\"', or remove the quote)", p->fline);
+            refuse_row(p);
             reset_csv(p);
         }
     }
     if (p->stop)
         return;
-    if (csv_fini(&p->csv, cb_field, cb_row, p) != 0)
+    if (csv_fini(&p->csv, cb_field, cb_row, p) != 0) {
         problem(p, SG_EPARSE, p->fline, p->fcol,
                 "the file ends inside a quoted field opened at line %u, column %u (add the closing '\"')", p->fline,
                 p->fcol);
+        refuse_row(p);
+    }
 }
 
 /* ---- checks after parsing -------------------------------------------------------- */
@@ -1237,29 +1360,13 @@ static void duplicate_apertures(struct rp *p, const struct sg_sieve_row *rows, s
     free(a);
 }
 
-/* Value checks that sg_record_validate() leaves out. */
+/* Checks that sg_record_validate() leaves out: the same aperture twice
+ * (validation has no order of rows to name the first). */
 static void extra_checks(struct rp *p)
 {
     const struct sg_record *r = p->rec;
     duplicate_apertures(p, r->sieve, r->n_sieve, "sieve");
     duplicate_apertures(p, r->fine_sieve, r->n_fine_sieve, "fine_sieve");
-    if (r->n_sieve == 0 && r->pos_sample_mass.line != 0 && !(r->sample_dry_mass_g > 0.0))
-        problem(p, SG_EINVAL, r->pos_sample_mass.line, r->pos_sample_mass.col,
-                "sample dry mass %g g must be positive", r->sample_dry_mass_g);
-    if (r->n_sieve == 0 && r->pos_split_aperture.line != 0 && !(r->split_aperture_mm > 0.0))
-        problem(p, SG_EINVAL, r->pos_split_aperture.line, r->pos_split_aperture.col,
-                "split aperture %g mm must be positive", r->split_aperture_mm);
-    if (r->method != SG_METHOD_PIPETTE && r->has_pipette_volume && !(r->pipette_volume_ml > 0.0))
-        problem(p, SG_EINVAL, r->pos_pipette_volume.line, r->pos_pipette_volume.col,
-                "pipette volume %g mL must be positive", r->pipette_volume_ml);
-    if (r->method != SG_METHOD_PIPETTE && r->has_dispersant && r->dispersant_mass_g < 0.0)
-        problem(p, SG_EINVAL, r->pos_dispersant.line, r->pos_dispersant.col,
-                "dispersant mass %g g must not be negative", r->dispersant_mass_g);
-    if (r->has_depth_line && !(r->depth_line_mm[0] > 0.0))
-        problem(p, SG_EINVAL, r->pos_depth_line.line, r->pos_depth_line.col,
-                "effective depth at reading 0 of %g mm must be positive (depth_line_mm is <depth at reading 0>,"
-                "<change per reading unit>)",
-                r->depth_line_mm[0]);
 }
 
 static void validate(struct rp *p)
@@ -1306,14 +1413,18 @@ enum sg_status sg_recordio_parse(const char *text, size_t len, struct sg_record 
     choose_separator(p);
     csv_set_delim(&p->csv, p->delim);
     split_rows(p);
-    if (p->stop || p->syntax)
+    if (p->stop)
         goto cleanup;
     if (p->rows == 0) {
-        problem(p, SG_EPARSE, 1, 1,
-                "no data rows: the file is empty or holds only comments (a test record has rows such as "
-                "'test,id,<test id>')");
+        if (!p->syntax)
+            problem(p, SG_EPARSE, 1, 1,
+                    "no data rows: the file is empty or holds only comments (a test record has rows such as "
+                    "'test,id,<test id>')");
         goto cleanup;
     }
+    /* Rows with problems were reported and left out (rec->refused says
+     * which parts they were): the rest of the record is still checked, so
+     * that one problem does not hide the others. */
     extra_checks(p);
     if (!p->stop)
         validate(p);
