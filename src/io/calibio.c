@@ -20,6 +20,7 @@
 #include <unistd.h>
 
 #include "sedgrade/atomic.h"
+#include "io/utf8.h"
 
 /* ---- growable text buffer -------------------------------------------------- */
 
@@ -55,37 +56,6 @@ static bool buf_str(struct buf *b, const char *s)
 
 /* ---- text: UTF-8 checks and messages that show only text ------------------------- */
 
-/* Length of the valid UTF-8 sequence at s[0..n) (Unicode 15, table 3-7), 0 if
- * invalid. s[0] >= 0x80. */
-static size_t utf8_len(const unsigned char *s, size_t n)
-{
-    const unsigned char b = s[0];
-    size_t len;
-    unsigned char lo = 0x80, hi = 0xBF;
-    if (b >= 0xC2 && b <= 0xDF) {
-        len = 2;
-    } else if (b >= 0xE0 && b <= 0xEF) {
-        len = 3;
-        if (b == 0xE0)
-            lo = 0xA0; /* no overlong forms */
-        else if (b == 0xED)
-            hi = 0x9F; /* no surrogates */
-    } else if (b >= 0xF0 && b <= 0xF4) {
-        len = 4;
-        if (b == 0xF0)
-            lo = 0x90;
-        else if (b == 0xF4)
-            hi = 0x8F; /* nothing above U+10FFFF */
-    } else {
-        return 0;
-    }
-    if (n < len || s[1] < lo || s[1] > hi)
-        return 0;
-    for (size_t i = 2; i < len; i++)
-        if (s[i] < 0x80 || s[i] > 0xBF)
-            return 0;
-    return len;
-}
 
 /* A control character (C0, DEL, or C1 U+0080-U+009F) at s[0..n). */
 static bool is_control(const unsigned char *s, size_t n)
@@ -112,7 +82,7 @@ static void escape_message(struct sg_error *err)
     const size_t room = sizeof out - 4; /* "..." and the NUL */
     size_t o = 0;
     for (i = 0; i < n;) {
-        const size_t len = m[i] < 0x80 ? 1 : utf8_len(m + i, n - i);
+        const size_t len = m[i] < 0x80 ? 1 : sg_utf8_len(m + i, n - i);
         const bool plain = len > 0 && !is_control(m + i, n - i);
         const size_t need = plain ? len : 4;
         if (o + need > room) {
@@ -286,7 +256,7 @@ static enum sg_status check_text(const char *line_text, size_t n, unsigned line,
             return sg_error_set(err, SG_EPARSE, line, (unsigned)i + 1,
                                 "control character 0x%02X in the line (the file is not plain text; save it as CSV)",
                                 s[i]);
-        const size_t len = utf8_len(s + i, n - i);
+        const size_t len = sg_utf8_len(s + i, n - i);
         if (len == 0)
             return sg_error_set(err, SG_EPARSE, line, (unsigned)i + 1,
                                 "byte 0x%02X is not UTF-8 text (save the file as UTF-8; a file written in Latin-1 "

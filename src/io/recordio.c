@@ -18,6 +18,7 @@
 #include <unistd.h>
 
 #include "sedgrade/sieve.h"
+#include "io/utf8.h"
 
 /* Bytes of a field kept for interpretation (longer fields are never valid:
  * names stop at 63 characters, numbers at NUMBER_TEXT_MAX). */
@@ -1074,38 +1075,6 @@ static void cb_row(int c, void *ctx)
 
 /* ---- the text as a whole --------------------------------------------------------- */
 
-/* Length of the valid UTF-8 sequence at s[0..n) (Unicode 15, table 3-7), 0 if invalid. */
-static size_t utf8_len(const unsigned char *s, size_t n)
-{
-    const unsigned char b = s[0];
-    size_t len;
-    unsigned char lo = 0x80, hi = 0xBF;
-    if (b < 0x80)
-        return 1;
-    if (b >= 0xC2 && b <= 0xDF)
-        len = 2;
-    else if (b >= 0xE0 && b <= 0xEF) {
-        len = 3;
-        if (b == 0xE0)
-            lo = 0xA0;
-        else if (b == 0xED)
-            hi = 0x9F;
-    } else if (b >= 0xF0 && b <= 0xF4) {
-        len = 4;
-        if (b == 0xF0)
-            lo = 0x90;
-        else if (b == 0xF4)
-            hi = 0x8F;
-    } else {
-        return 0;
-    }
-    if (n < len || s[1] < lo || s[1] > hi)
-        return 0;
-    for (size_t i = 2; i < len; i++)
-        if (s[i] < 0x80 || s[i] > 0xBF)
-            return 0;
-    return len;
-}
 
 /* Refuses binary and non-UTF-8 text with one located message. */
 static bool check_text(struct rp *p)
@@ -1139,7 +1108,7 @@ static bool check_text(struct rp *p)
             continue;
         }
         const bool control = b == 0 || (b < 0x20 && b != '\t' && b != '\n' && b != '\r') || b == 0x7F;
-        const size_t len = control ? 0 : utf8_len(s + i, p->n - i);
+        const size_t len = control ? 0 : sg_utf8_len(s + i, p->n - i);
         if (len == 0) {
             struct cursor c = p->cur;
             while (c.i < i)
