@@ -249,18 +249,15 @@ struct plan {
 
     /* layout of the nominal result */
     size_t n_quant;
-    char (*names)[SG_QNAME_MAX];
-    enum qkind *kind;
-    size_t *slot;       /* value slot (Q_NUMERIC, Q_UNDET) */
-    size_t *cat;        /* class table (Q_CATEGORICAL, Q_UNDET) */
-    size_t *draw_index; /* where a draw's result is expected to hold quantity i */
-    /* the quantities a draw is read for (kind not Q_SKIP), in order, each
-     * with what extract needs in one place */
+    char (*names)[SG_QNAME_MAX]; /* [n_quant], zero after the text */
+    /* the quantities followed through the draws (kind not Q_SKIP), in
+     * nominal order, each with what a draw and the summary need */
     struct follow {
         size_t q;          /* nominal index */
-        size_t j;          /* = draw_index[q] */
+        size_t j;          /* where a draw's result is expected to hold it */
         enum qkind kind;
-        size_t slot, cat;
+        size_t slot;       /* value slot (Q_NUMERIC, Q_UNDET) */
+        size_t cat;        /* class table (Q_CATEGORICAL, Q_UNDET) */
     } *follow;
     size_t n_follow;
     /* slots: n_num numeric (with tails), n_und undetermined, then percent
@@ -629,26 +626,25 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
         }
 
     enum sg_status st = SG_OK;
-    const size_t n_quant = p->n_quant; /* rows added below are not revisited */
-    for (size_t i = 0; i < n_quant; i++) {
-        struct sg_quantity *q = &res->quantities[i];
+    for (const struct follow *f = p->follow, *end = f + p->n_follow; f < end; f++) {
+        struct sg_quantity *q = &res->quantities[f->q];
         char buf[SG_QNOTE_MAX];
-        if (p->kind[i] == Q_UNDET) {
-            const size_t mq = (size_t)tot[p->slot[i]].n;
+        if (f->kind == Q_UNDET) {
+            const size_t mq = (size_t)tot[f->slot].n;
             if (mq == 0)
                 continue;
             char pct[24], lead[80];
             percent_text(pct, sizeof pct, 100.0 * (double)mq / (double)ok_draws);
             (void)snprintf(lead, sizeof lead, "Monte Carlo: determined in %s of draws", pct);
-            if (cats[p->cat[i]].n > 0) {
+            if (cats[f->cat].n > 0) {
                 strcat(lead, " as");
-                class_note(&cats[p->cat[i]], idx, ok_draws, lead, buf, sizeof buf);
+                class_note(&cats[f->cat], idx, ok_draws, lead, buf, sizeof buf);
             } else {
                 (void)snprintf(buf, sizeof buf, "%s", lead);
             }
             note_append(q, buf);
-        } else if (p->kind[i] == Q_NUMERIC) {
-            const size_t s = p->slot[i];
+        } else if (f->kind == Q_NUMERIC) {
+            const size_t s = f->slot;
             const struct moments *m = &tot[s];
             const size_t mq = (size_t)m->n;
             size_t r = 0, qq = 0;
@@ -672,29 +668,30 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
                                pct);
                 note_append(q, buf);
             }
-        } else if (p->kind[i] == Q_CATEGORICAL) {
+        } else if (f->kind == Q_CATEGORICAL) {
             char lead[80] = "Monte Carlo class probabilities:";
             if (failed > 0)
                 (void)snprintf(lead, sizeof lead, "Monte Carlo class probabilities (of %zu accepted draws):",
                                ok_draws);
-            class_note(&cats[p->cat[i]], idx, ok_draws, lead, buf, sizeof buf);
+            class_note(&cats[f->cat], idx, ok_draws, lead, buf, sizeof buf);
             note_append(q, buf);
         }
     }
     /* numeric class-probability rows, after the notes (adding rows may move res->quantities) */
-    for (size_t i = 0; i < n_quant && st == SG_OK; i++) {
-        if (p->kind[i] != Q_CATEGORICAL || !is_class_row_quantity(p->names[i]))
+    for (const struct follow *f = p->follow, *end = f + p->n_follow; f < end && st == SG_OK; f++) {
+        const char *qname = p->names[f->q];
+        if (f->kind != Q_CATEGORICAL || !is_class_row_quantity(qname))
             continue;
-        const struct cat_table *t = &cats[p->cat[i]];
+        const struct cat_table *t = &cats[f->cat];
         order_classes(t, idx);
         for (size_t j = 0; j < t->n && st == SG_OK; j++) {
             char name[SG_QNAME_MAX], s[SG_QNAME_MAX], note[SG_QNOTE_MAX];
             slug(s, sizeof s, t->text[idx[j]]);
-            (void)snprintf(name, sizeof name, "%.16s_p_%.20s", p->names[i], s);
+            (void)snprintf(name, sizeof name, "%.16s_p_%.20s", qname, s);
             for (size_t n = strlen(name); n > 0 && name[n - 1] == '_'; n--)
                 name[n - 1] = '\0'; /* a slug cut after a separator */
             (void)snprintf(note, sizeof note, "Monte Carlo probability of %s '%s' (percent of %zu draws)",
-                           p->names[i], class_label(t->text[idx[j]]), ok_draws);
+                           qname, class_label(t->text[idx[j]]), ok_draws);
             st = sg_result_add_value(res, name, "%", 100.0 * (double)t->count[idx[j]] / (double)ok_draws, note);
         }
     }
@@ -765,11 +762,7 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
 static void plan_release(struct plan *p)
 {
     free(p->names);
-    free(p->kind);
-    free(p->slot);
-    free(p->cat);
     free(p->shift);
-    free(p->draw_index);
     free(p->follow);
     free(p->block_stats);
     if (p->lo != NULL)
@@ -844,12 +837,8 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
     struct worker *ws = calloc(nw, sizeof *ws);
     bool lock_ready = false;
     p.names = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.names);
-    p.kind = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.kind);
-    p.slot = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.slot);
-    p.cat = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.cat);
-    p.draw_index = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.draw_index);
-    if (ws == NULL || p.names == NULL || p.kind == NULL || p.slot == NULL || p.cat == NULL ||
-        p.draw_index == NULL)
+    p.follow = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.follow);
+    if (ws == NULL || p.names == NULL || p.follow == NULL)
         goto nomem;
     /* the layout of a draw's (values-only) result: quantities it does not
      * compute (QC status, calibration_used) get no uncertainty */
@@ -861,18 +850,20 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
         (void)snprintf(p.names[i], sizeof p.names[i], "%s", q->name);
         const struct sg_quantity *dq = sg_result_quantity(&layout, q->name);
         if (dq == NULL || strcmp(q->name, "calibration_used") == 0)
-            continue;
-        p.draw_index[i] = (size_t)(dq - layout.quantities);
+            continue; /* Q_SKIP */
+        struct follow *f = &p.follow[p.n_follow++];
+        f->q = i;
+        f->j = (size_t)(dq - layout.quantities);
         if (!q->determined) {
-            p.kind[i] = Q_UNDET;
-            p.cat[i] = p.n_cat++;
+            f->kind = Q_UNDET;
+            f->cat = p.n_cat++;
             p.n_und++;
         } else if (q->is_text) {
-            p.kind[i] = Q_CATEGORICAL;
-            p.cat[i] = p.n_cat++;
+            f->kind = Q_CATEGORICAL;
+            f->cat = p.n_cat++;
         } else {
-            p.kind[i] = Q_NUMERIC;
-            p.slot[i] = p.n_num++;
+            f->kind = Q_NUMERIC;
+            f->slot = p.n_num++;
         }
     }
     sg_result_release(&layout);
@@ -883,16 +874,12 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
     p.shift = calloc(p.n_slots ? p.n_slots : 1, sizeof *p.shift);
     if (p.shift == NULL)
         goto nomem;
-    p.follow = calloc(p.n_quant ? p.n_quant : 1, sizeof *p.follow);
-    if (p.follow == NULL)
-        goto nomem;
-    for (size_t i = 0, u = p.n_num; i < p.n_quant; i++) {
-        if (p.kind[i] == Q_UNDET)
-            p.slot[i] = u++; /* counted only: shift 0 */
-        else if (p.kind[i] == Q_NUMERIC)
-            p.shift[p.slot[i]] = res->quantities[i].value;
-        if (p.kind[i] != Q_SKIP)
-            p.follow[p.n_follow++] = (struct follow){i, p.draw_index[i], p.kind[i], p.slot[i], p.cat[i]};
+    for (size_t i = 0, u = p.n_num; i < p.n_follow; i++) {
+        struct follow *f = &p.follow[i];
+        if (f->kind == Q_UNDET)
+            f->slot = u++; /* counted only: shift 0 */
+        else if (f->kind == Q_NUMERIC)
+            p.shift[f->slot] = res->quantities[f->q].value;
     }
     for (size_t i = 0; i < p.n_pts; i++) {
         const double pf = res->points[i].percent_finer, d = res->points[i].diameter_mm;
