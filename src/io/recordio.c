@@ -578,16 +578,11 @@ static bool number(struct rp *p, const struct field *f, const struct numspec *ns
                 ns->what, t, ns->example);
         break;
     case NUM_TOO_LARGE:
-        problem(p, SG_EPARSE, f->line, f->col,
-                "%s '%s' is out of range: too large to be held as a number (check the exponent; write %s as a "
-                "decimal number, e.g. %s)",
-                ns->what, t, ns->unit_words, ns->example);
-        break;
     case NUM_TOO_SMALL:
         problem(p, SG_EPARSE, f->line, f->col,
-                "%s '%s' is out of range: too near zero to be held as a number (check the exponent; write %s "
-                "as a decimal number, e.g. %s)",
-                ns->what, t, ns->unit_words, ns->example);
+                "%s '%s' is out of range: %s to be held as a number (check the exponent; write %s as a "
+                "decimal number, e.g. %s)",
+                ns->what, t, e == NUM_TOO_LARGE ? "too large" : "too near zero", ns->unit_words, ns->example);
         break;
     case NUM_WORD:
     case NUM_BAD:
