@@ -67,9 +67,11 @@ static enum sg_status locate(struct sg_error *err, enum sg_status st, struct sg_
     return st;
 }
 
+/* Adds a point for each sieve of rows (not the pan) and lowers *finest_mm
+ * to the finest aperture among them. */
 static enum sg_status add_sieve_points(const struct sg_sieve_row *rows, size_t n, double mass_g,
                                        double scale_pct, enum sg_source src, bool values_only,
-                                       struct sg_result *res, struct sg_error *err)
+                                       struct sg_result *res, double *finest_mm, struct sg_error *err)
 {
     if (n == 0)
         return SG_OK;
@@ -87,6 +89,8 @@ static enum sg_status add_sieve_points(const struct sg_sieve_row *rows, size_t n
             break;
         }
         p->diameter_mm = lines[i].aperture_mm;
+        if (p->diameter_mm < *finest_mm)
+            *finest_mm = p->diameter_mm;
         p->percent_finer = lines[i].percent_passing * scale_pct / 100.0;
         p->on_curve = true;
         if (values_only)
@@ -295,34 +299,29 @@ static enum sg_status add_pipette_points(const struct sg_record *rec, const stru
     return SG_OK;
 }
 
-/* Sedimentation points coarser than the finest sieve are outside the Stokes
- * range and are kept off the curve (METHODS.md 6.2). */
-static void mark_coarser_than_sieve(struct sg_result *res)
-{
-    double finest = INFINITY;
-    for (size_t i = 0; i < res->n_points; i++) {
-        const struct sg_point *p = &res->points[i];
-        if ((p->source == SG_SOURCE_SIEVE || p->source == SG_SOURCE_FINE_SIEVE) && p->diameter_mm < finest)
-            finest = p->diameter_mm;
-    }
-    for (size_t i = 0; i < res->n_points; i++) {
-        struct sg_point *p = &res->points[i];
-        if ((p->source == SG_SOURCE_HYDROMETER || p->source == SG_SOURCE_PIPETTE) && p->diameter_mm >= finest) {
-            p->flags |= SG_PF_COARSER_THAN_SIEVE;
-            p->on_curve = false;
-        }
-    }
-}
+/* Curves have a few dozen points: gathered on the stack (a Monte Carlo draw
+ * builds one). */
+#define CURVE_POINTS_ON_STACK 128
 
-static enum sg_status build_curve(const struct sg_reduce_options *opt, struct sg_result *res,
-                                  struct sg_error *err)
+/* Builds the curve from the points on it. Sedimentation points at or
+ * coarser than the finest sieve (finest_sieve_mm, INFINITY when there is
+ * none) are outside the Stokes range: they are flagged and kept off the
+ * curve (METHODS.md 6.2), in the same pass. */
+static enum sg_status build_curve(const struct sg_reduce_options *opt, double finest_sieve_mm,
+                                  struct sg_result *res, struct sg_error *err)
 {
-    struct sg_curve_point *cp = malloc((res->n_points ? res->n_points : 1) * sizeof *cp);
+    struct sg_curve_point local[CURVE_POINTS_ON_STACK];
+    struct sg_curve_point *cp = res->n_points <= CURVE_POINTS_ON_STACK ? local : malloc(res->n_points * sizeof *cp);
     if (cp == NULL)
         return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building the curve");
     size_t n = 0;
     for (size_t i = 0; i < res->n_points; i++) {
-        const struct sg_point *p = &res->points[i];
+        struct sg_point *p = &res->points[i];
+        if ((p->source == SG_SOURCE_HYDROMETER || p->source == SG_SOURCE_PIPETTE) &&
+            p->diameter_mm >= finest_sieve_mm) {
+            p->flags |= SG_PF_COARSER_THAN_SIEVE;
+            p->on_curve = false;
+        }
         if (!p->on_curve)
             continue;
         cp[n].diameter_mm = p->diameter_mm;
@@ -333,7 +332,8 @@ static enum sg_status build_curve(const struct sg_reduce_options *opt, struct sg
     struct sg_error cerr;
     sg_error_clear(&cerr);
     enum sg_status st = sg_curve_build(&res->curve, cp, n, opt->interp, &cerr);
-    free(cp);
+    if (cp != local)
+        free(cp);
     if (st == SG_EDOM) {
         /* Too few points for a curve: results are still the points; the
          * summary says why each quantity is not determined. */
@@ -368,19 +368,19 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
     if (st != SG_OK)
         return st;
 
-    double pp_split = 100.0;
+    double pp_split = 100.0, finest_sieve_mm = INFINITY;
     if (rec->n_sieve > 0 && !opt->values_only && (st = check_split_sieve(rec, res, err)) != SG_OK)
         return st;
     if (rec->n_sieve > 0) {
         pp_split = sg_sieve_percent_passing(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g,
                                             rec->split_aperture_mm);
         if ((st = add_sieve_points(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g, 100.0, SG_SOURCE_SIEVE,
-                                   opt->values_only, res, err)) != SG_OK)
+                                   opt->values_only, res, &finest_sieve_mm, err)) != SG_OK)
             return st;
     }
     res->pp_split = pp_split;
     if ((st = add_sieve_points(rec->fine_sieve, rec->n_fine_sieve, rec->specimen_dry_mass_g, pp_split,
-                               SG_SOURCE_FINE_SIEVE, opt->values_only, res, err)) != SG_OK)
+                               SG_SOURCE_FINE_SIEVE, opt->values_only, res, &finest_sieve_mm, err)) != SG_OK)
         return st;
     if (rec->method == SG_METHOD_HYDROMETER)
         st = add_hydrometer_points(rec, k, pp_split, opt->values_only, res, err);
@@ -389,8 +389,7 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
     if (st != SG_OK)
         return st;
 
-    mark_coarser_than_sieve(res);
-    if ((st = build_curve(opt, res, err)) != SG_OK)
+    if ((st = build_curve(opt, finest_sieve_mm, res, err)) != SG_OK)
         return st;
 
     if ((st = sg_result_add_value(res, "split_passing_pct", "%", pp_split,
