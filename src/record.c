@@ -365,10 +365,9 @@ enum sg_status sg_record_validate(const struct sg_record *rec, struct sg_diag_li
 
     /* The specimen is part of the sample. Both are needed here, each
      * within its range (else it was reported above). */
-    const struct sg_srcpos nowhere = {0, 0};
     if (rec->pos_sample_mass.line != 0 && rec->pos_specimen_mass.line != 0 &&
-        sg_record_check_value(SG_VALUE_SAMPLE_MASS, rec->sample_dry_mass_g, nowhere, NULL) == SG_OK &&
-        sg_record_check_value(SG_VALUE_SPECIMEN_MASS, rec->specimen_dry_mass_g, nowhere, NULL) == SG_OK &&
+        within(SG_VALUE_SAMPLE_MASS, rec->sample_dry_mass_g) &&
+        within(SG_VALUE_SPECIMEN_MASS, rec->specimen_dry_mass_g) &&
         rec->specimen_dry_mass_g >
             rec->sample_dry_mass_g * (1.0 + SG_RECORD_SPECIMEN_OVER_SAMPLE_MAX_PCT / 100.0))
         REPORT(&c, rec->pos_specimen_mass,

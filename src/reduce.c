@@ -392,9 +392,15 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
     if ((st = build_curve(opt, finest_sieve_mm, res, err)) != SG_OK)
         return st;
 
-    if ((st = sg_result_add_value(res, "split_passing_pct", "%", pp_split,
-                                  "percent of the whole sample passing the split sieve")) != SG_OK)
-        return sg_error_set(err, st, 0, 0, "out of memory");
+    /* the row from a padded name, with no note in a draw (values_only):
+     * sg_result_add_value's work without measuring and copying strings */
+    static const char split_name[SG_QNAME_MAX] = "split_passing_pct";
+    struct sg_quantity *q = sg_result_new_quantity(
+        res, split_name, "%", opt->values_only ? NULL : "percent of the whole sample passing the split sieve");
+    if (q == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+    q->determined = isfinite(pp_split);
+    q->value = pp_split;
     if ((st = sg_classify_summarise(&res->curve, rec, opt, res, err)) != SG_OK)
         return st;
     if ((st = sg_plasticity_summarise(rec, opt, res, err)) != SG_OK ||
