@@ -3,6 +3,7 @@
  * never extrapolated. */
 #include "sedgrade/curve.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdbool.h>
 #include <stdlib.h>
@@ -132,6 +133,29 @@ static enum sg_status prepare_steffen(struct sg_curve *c, struct sg_error *err)
     return SG_OK;
 }
 
+/* Whether a point can go on a curve: a positive, finite diameter and a
+ * finite percent. */
+static bool point_ok(const struct sg_curve_point *p)
+{
+    return p->diameter_mm > 0.0 && p->diameter_mm <= DBL_MAX && fabs(p->percent_finer) <= DBL_MAX;
+}
+
+/* The message for the first of pts (in input order) that is not point_ok;
+ * SG_OK when there is none. */
+static enum sg_status check_points(const struct sg_curve_point *pts, size_t n, struct sg_error *err)
+{
+    for (size_t i = 0; i < n; i++) {
+        if (point_ok(&pts[i]))
+            continue;
+        if (!isfinite(pts[i].diameter_mm) || pts[i].diameter_mm <= 0.0)
+            return sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu: diameter %g mm must be positive and finite",
+                                i + 1, pts[i].diameter_mm);
+        return sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu at %g mm: percent finer %g is not a number",
+                            i + 1, pts[i].diameter_mm, pts[i].percent_finer);
+    }
+    return SG_OK;
+}
+
 enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *pts, size_t n,
                               enum sg_interp method, struct sg_error *err)
 {
@@ -147,27 +171,17 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
                           (int)method);
         goto cleanup;
     }
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(pts[i].diameter_mm) || pts[i].diameter_mm <= 0.0) {
-            st = sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu: diameter %g mm must be positive and finite",
-                              i + 1, pts[i].diameter_mm);
+    /* the points are checked in the sorting pass below (one walk over
+     * them per Monte Carlo draw instead of two) when there is one */
+    if (n < 2 || reserve(c, n) != SG_OK) {
+        if ((st = check_points(pts, n, err)) != SG_OK)
             goto cleanup;
-        }
-        if (!isfinite(pts[i].percent_finer)) {
-            st = sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu at %g mm: percent finer %g is not a number",
-                              i + 1, pts[i].diameter_mm, pts[i].percent_finer);
-            goto cleanup;
-        }
-    }
-    if (n < 2) {
-        st = sg_error_set(err, SG_EDOM, 0, 0,
-                          "%zu point%s on the curve: at least two sizes are needed to interpolate", n,
-                          n == 1 ? "" : "s");
-        goto cleanup;
-    }
-
-    if (reserve(c, n) != SG_OK) {
-        st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building a curve of %zu points", n);
+        if (n < 2)
+            st = sg_error_set(err, SG_EDOM, 0, 0,
+                              "%zu point%s on the curve: at least two sizes are needed to interpolate", n,
+                              n == 1 ? "" : "s");
+        else
+            st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building a curve of %zu points", n);
         goto cleanup;
     }
     /* Insertion sort, fed from the last point: the pipeline lists each
@@ -180,6 +194,10 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
     const size_t n_memo = c->n_memo;
     c->n_memo = 0;
     for (size_t i = n, done = 0; i-- > 0; done++) {
+        if (!point_ok(&pts[i])) {
+            st = check_points(pts, n, err); /* the message for the first one in input order */
+            goto cleanup;
+        }
         const double d = pts[i].diameter_mm;
         if (!(i < n_memo && memo_d[i] == d)) {
             memo_d[i] = d;
@@ -200,18 +218,21 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
      * earliest in input order; the node sits at the run's first size. */
     size_t m = 0;
     size_t rising_from = 0;
-    double pmin = NAN, pmax = NAN;
+    double pmin = INFINITY, pmax = -INFINITY; /* the percents are finite (point_ok) */
     for (size_t i = 0; i < n;) {
         size_t best = i, j = i + 1;
         for (; j < n && s[j].log10_d - s[i].log10_d <= SG_CURVE_SAME_LOG10_D; j++)
             if (s[j].rank < s[best].rank || (s[j].rank == s[best].rank && s[j].index < s[best].index))
                 best = j;
-        c->log10_d[m] = s[i].log10_d;
-        c->percent[m] = s[best].percent;
-        if (m > 0 && c->percent[m] < c->percent[m - 1])
+        const double pc = s[best].percent;
+        if (pc < pmin)
+            pmin = pc;
+        if (pc > pmax)
+            pmax = pc;
+        if (m > 0 && pc < c->percent[m - 1])
             rising_from = m;
-        pmin = m == 0 || c->percent[m] < pmin ? c->percent[m] : pmin;
-        pmax = m == 0 || c->percent[m] > pmax ? c->percent[m] : pmax;
+        c->log10_d[m] = s[i].log10_d;
+        c->percent[m] = pc;
         m++;
         i = j;
     }

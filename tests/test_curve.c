@@ -435,6 +435,13 @@ Test(curve, build_errors)
     cr_assert_eq(sg_curve_build(&c, nan_d, 2, SG_INTERP_LOGLINEAR, &e), SG_EINVAL);
     const struct sg_curve_point inf_p[] = {{0.1, INFINITY, 0}, {0.2, 22.0, 1}};
     cr_assert_eq(sg_curve_build(&c, inf_p, 2, SG_INTERP_LOGLINEAR, &e), SG_EINVAL);
+    /* one bad point alone is refused as bad, not as too few; of several,
+     * the first in input order is named */
+    const struct sg_curve_point bad_one[] = {{-0.1, 20.0, 0}};
+    cr_assert_eq(sg_curve_build(&c, bad_one, 1, SG_INTERP_LOGLINEAR, &e), SG_EINVAL);
+    const struct sg_curve_point two_bad[] = {{1.0, 90.0, 0}, {0.5, NAN, 0}, {0.3, 40.0, 0}, {-0.2, 22.0, 1}};
+    cr_assert_eq(sg_curve_build(&c, two_bad, 4, SG_INTERP_LOGLINEAR, &e), SG_EINVAL);
+    cr_assert(strstr(e.msg, "curve point 2 at 0.5 mm: percent finer nan") != NULL, "%s", e.msg);
     const struct sg_curve_point ok[] = {{0.1, 20.0, 0}, {0.2, 22.0, 1}};
     cr_assert_eq(sg_curve_build(&c, ok, 2, (enum sg_interp)7, &e), SG_EINVAL);
     cr_assert_eq(c.n, 0);
