@@ -23,8 +23,8 @@ double sg_hydrometer_concentration_factor(enum sg_scale scale, double particle_d
     return NAN;
 }
 
-enum sg_status sg_hydrometer_prepare(const struct sg_hydrometer_input *in, struct sg_hydrometer_shared *sh,
-                                     struct sg_error *err)
+enum sg_status sg_hydrometer_prepare(const struct sg_hydrometer_input *in, bool values_only,
+                                     struct sg_hydrometer_shared *sh, struct sg_error *err)
 {
     if (in->scale == SG_SCALE_NONE)
         return sg_error_set(err, SG_EINVAL, 0, 0,
@@ -43,6 +43,7 @@ enum sg_status sg_hydrometer_prepare(const struct sg_hydrometer_input *in, struc
                             in->particle_density_mg_m3);
     sh->concentration_factor = a;
     sh->suspension_volume_l = in->suspension_volume_ml / 1000.0;
+    sh->values_only = values_only;
     return SG_OK;
 }
 
@@ -79,6 +80,10 @@ enum sg_status sg_hydrometer_reduce_shared(const struct sg_hydrometer_input *in,
     if (st != SG_OK)
         return st;
     out->diameter_mm = d_m * 1000.0;
+    if (sh->values_only) {
+        out->velocity_mm_s = out->reynolds = NAN;
+        return SG_OK;
+    }
     const double v = sg_stokes_velocity_m_s(eta, out->density_diff_kg_m3, d_m);
     out->velocity_mm_s = v * 1000.0;
     out->reynolds = sg_stokes_reynolds(rho_w, v, d_m, eta);
@@ -89,6 +94,6 @@ enum sg_status sg_hydrometer_reduce(const struct sg_hydrometer_input *in, struct
                                     struct sg_error *err)
 {
     struct sg_hydrometer_shared sh;
-    enum sg_status st = sg_hydrometer_prepare(in, &sh, err);
+    enum sg_status st = sg_hydrometer_prepare(in, false, &sh, err);
     return st != SG_OK ? st : sg_hydrometer_reduce_shared(in, &sh, out, err);
 }

@@ -197,7 +197,7 @@ static enum sg_status add_hydrometer_points(const struct sg_record *rec, const s
     };
     struct sg_hydrometer_shared sh;
     enum sg_status st;
-    if (rec->n_readings > 0 && (st = sg_hydrometer_prepare(&in, &sh, err)) != SG_OK)
+    if (rec->n_readings > 0 && (st = sg_hydrometer_prepare(&in, values_only, &sh, err)) != SG_OK)
         return locate(err, st, rec->readings[0].pos);
     size_t n_missing = 0;
     for (size_t i = 0; i < rec->n_readings; i++) {

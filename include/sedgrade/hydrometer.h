@@ -3,6 +3,8 @@
 #ifndef SEDGRADE_HYDROMETER_H
 #define SEDGRADE_HYDROMETER_H
 
+#include <stdbool.h>
+
 #include "sedgrade/error.h"
 #include "sedgrade/record.h"
 
@@ -49,6 +51,7 @@ double sg_hydrometer_concentration_factor(enum sg_scale scale, double particle_d
 struct sg_hydrometer_shared {
     double concentration_factor; /* g/L per scale unit (sg_hydrometer_concentration_factor) */
     double suspension_volume_l;
+    bool values_only; /* velocity_mm_s and reynolds are left NaN (a Monte Carlo draw reads neither) */
 };
 
 /* Reduces one reading. Returns SG_OK; SG_EINVAL for a scale of
@@ -62,9 +65,11 @@ enum sg_status sg_hydrometer_reduce(const struct sg_hydrometer_input *in, struct
 
 /* The test's part of sg_hydrometer_reduce: checks in's scale, specimen
  * mass, suspension volume and particle density (the messages of
- * sg_hydrometer_reduce) and fills sh. */
-enum sg_status sg_hydrometer_prepare(const struct sg_hydrometer_input *in, struct sg_hydrometer_shared *sh,
-                                     struct sg_error *err);
+ * sg_hydrometer_reduce) and fills sh. With values_only the readings
+ * reduced with sh skip the settling velocity and Reynolds number (left
+ * NaN); every other output is the same. */
+enum sg_status sg_hydrometer_prepare(const struct sg_hydrometer_input *in, bool values_only,
+                                     struct sg_hydrometer_shared *sh, struct sg_error *err);
 
 /* The reading's part: reduces in with sh prepared from an input with the
  * same scale, specimen mass, suspension volume and particle density (the
