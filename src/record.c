@@ -304,8 +304,9 @@ static void check_id(struct checker *c, const struct sg_record *rec, struct sg_s
 
 /* Elapsed times: each within range, strictly increasing. Called row by row
  * in order; *last is the previous accepted time (NAN: none, or the previous
- * row's time was refused). */
-static void check_time(struct checker *c, double t, struct sg_srcpos pos, double *last)
+ * row's time was refused). Inline: it runs for every row of every Monte
+ * Carlo draw, and the call cost as much as the test. */
+static inline void check_time(struct checker *c, double t, struct sg_srcpos pos, double *last)
 {
     if (!check(c, SG_VALUE_ELAPSED, t, pos)) {
         *last = (double)NAN;
