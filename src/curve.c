@@ -3,6 +3,7 @@
  * never extrapolated. */
 #include "sedgrade/curve.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdbool.h>
 #include <stdlib.h>
@@ -132,6 +133,29 @@ static enum sg_status prepare_steffen(struct sg_curve *c, struct sg_error *err)
     return SG_OK;
 }
 
+/* Whether a point can go on a curve: a positive, finite diameter and a
+ * finite percent. */
+static bool point_ok(const struct sg_curve_point *p)
+{
+    return p->diameter_mm > 0.0 && p->diameter_mm <= DBL_MAX && fabs(p->percent_finer) <= DBL_MAX;
+}
+
+/* The message for the first of pts (in input order) that is not point_ok;
+ * SG_OK when there is none. */
+static enum sg_status check_points(const struct sg_curve_point *pts, size_t n, struct sg_error *err)
+{
+    for (size_t i = 0; i < n; i++) {
+        if (point_ok(&pts[i]))
+            continue;
+        if (!isfinite(pts[i].diameter_mm) || pts[i].diameter_mm <= 0.0)
+            return sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu: diameter %g mm must be positive and finite",
+                                i + 1, pts[i].diameter_mm);
+        return sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu at %g mm: percent finer %g is not a number",
+                            i + 1, pts[i].diameter_mm, pts[i].percent_finer);
+    }
+    return SG_OK;
+}
+
 enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *pts, size_t n,
                               enum sg_interp method, struct sg_error *err)
 {
@@ -147,27 +171,17 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
                           (int)method);
         goto cleanup;
     }
-    for (size_t i = 0; i < n; i++) {
-        if (!isfinite(pts[i].diameter_mm) || pts[i].diameter_mm <= 0.0) {
-            st = sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu: diameter %g mm must be positive and finite",
-                              i + 1, pts[i].diameter_mm);
+    /* the points are checked in the sorting pass below (one walk over
+     * them per Monte Carlo draw instead of two) when there is one */
+    if (n < 2 || reserve(c, n) != SG_OK) {
+        if ((st = check_points(pts, n, err)) != SG_OK)
             goto cleanup;
-        }
-        if (!isfinite(pts[i].percent_finer)) {
-            st = sg_error_set(err, SG_EINVAL, 0, 0, "curve point %zu at %g mm: percent finer %g is not a number",
-                              i + 1, pts[i].diameter_mm, pts[i].percent_finer);
-            goto cleanup;
-        }
-    }
-    if (n < 2) {
-        st = sg_error_set(err, SG_EDOM, 0, 0,
-                          "%zu point%s on the curve: at least two sizes are needed to interpolate", n,
-                          n == 1 ? "" : "s");
-        goto cleanup;
-    }
-
-    if (reserve(c, n) != SG_OK) {
-        st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building a curve of %zu points", n);
+        if (n < 2)
+            st = sg_error_set(err, SG_EDOM, 0, 0,
+                              "%zu point%s on the curve: at least two sizes are needed to interpolate", n,
+                              n == 1 ? "" : "s");
+        else
+            st = sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building a curve of %zu points", n);
         goto cleanup;
     }
     /* Insertion sort, fed from the last point: the pipeline lists each
@@ -180,6 +194,10 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
     const size_t n_memo = c->n_memo;
     c->n_memo = 0;
     for (size_t i = n, done = 0; i-- > 0; done++) {
+        if (!point_ok(&pts[i])) {
+            st = check_points(pts, n, err); /* the message for the first one in input order */
+            goto cleanup;
+        }
         const double d = pts[i].diameter_mm;
         if (!(i < n_memo && memo_d[i] == d)) {
             memo_d[i] = d;
@@ -199,17 +217,29 @@ enum sg_status sg_curve_build(struct sg_curve *c, const struct sg_curve_point *p
      * member) becomes one node: the member with the lowest rank, then the
      * earliest in input order; the node sits at the run's first size. */
     size_t m = 0;
+    size_t rising_from = 0;
+    double pmin = INFINITY, pmax = -INFINITY; /* the percents are finite (point_ok) */
     for (size_t i = 0; i < n;) {
         size_t best = i, j = i + 1;
         for (; j < n && s[j].log10_d - s[i].log10_d <= SG_CURVE_SAME_LOG10_D; j++)
             if (s[j].rank < s[best].rank || (s[j].rank == s[best].rank && s[j].index < s[best].index))
                 best = j;
+        const double pc = s[best].percent;
+        if (pc < pmin)
+            pmin = pc;
+        if (pc > pmax)
+            pmax = pc;
+        if (m > 0 && pc < c->percent[m - 1])
+            rising_from = m;
         c->log10_d[m] = s[i].log10_d;
-        c->percent[m] = s[best].percent;
+        c->percent[m] = pc;
         m++;
         i = j;
     }
     c->n = m;
+    c->rising_from = rising_from;
+    c->percent_min = pmin;
+    c->percent_max = pmax;
     c->method = method;
     if (m < 2) {
         st = sg_error_set(err, SG_EDOM, 0, 0,
@@ -424,11 +454,7 @@ static enum sg_status not_reached(const struct sg_curve *c, double p, struct sg_
     if (err == NULL)
         return SG_EDOM;
     const size_t last = c->n - 1;
-    double pmin = c->percent[0], pmax = c->percent[0];
-    for (size_t i = 1; i < c->n; i++) {
-        pmin = fmin(pmin, c->percent[i]);
-        pmax = fmax(pmax, c->percent[i]);
-    }
+    const double pmin = c->percent_min, pmax = c->percent_max;
     if (p < pmin && pmin == c->percent[0])
         return sg_error_set(err, SG_EDOM, 0, 0,
                             "%g %% finer is below the finest point (%g %% finer at %g mm); the curve is not "
@@ -445,6 +471,27 @@ static enum sg_status not_reached(const struct sg_curve *c, double p, struct sg_
                         p, pmin, pmax, pow(10.0, c->log10_d[0]), pow(10.0, c->log10_d[last]));
 }
 
+/* The diameter at percent p on segment i, where P[i-1] < p <= P[i]. */
+static enum sg_status diameter_on_segment(const struct sg_curve *c, size_t i, double p, double *d_mm,
+                                          struct sg_error *err)
+{
+    const double pf = c->percent[i - 1], pc = c->percent[i];
+    if (p == pc) {
+        *d_mm = pow(10.0, c->log10_d[i]);
+        return SG_OK;
+    }
+    double x = NAN;
+    if (c->impl != NULL) {
+        enum sg_status st = steffen_solve(c, i, p, &x, err);
+        if (st != SG_OK)
+            return st;
+    } else {
+        x = c->log10_d[i - 1] + (p - pf) * (c->log10_d[i] - c->log10_d[i - 1]) / (pc - pf);
+    }
+    *d_mm = pow(10.0, x);
+    return SG_OK;
+}
+
 enum sg_status sg_curve_diameter_at(const struct sg_curve *c, double p, double *d_mm, struct sg_error *err)
 {
     if (c == NULL || c->n < 2 || c->log10_d == NULL || c->percent == NULL)
@@ -453,26 +500,31 @@ enum sg_status sg_curve_diameter_at(const struct sg_curve *c, double p, double *
         return sg_error_set(err, SG_EINVAL, 0, 0, "no place to store the diameter");
     if (!isfinite(p))
         return sg_error_set(err, SG_EINVAL, 0, 0, "percent finer %g is not a number", p);
-    /* scan from the coarse end: first rising segment with P_fine < p <= P_coarse */
-    for (size_t i = c->n - 1; i >= 1; i--) {
-        const double pf = c->percent[i - 1], pc = c->percent[i];
-        if (!(pf < p && p <= pc))
-            continue;
-        if (p == pc) {
-            *d_mm = pow(10.0, c->log10_d[i]);
-            return SG_OK;
+    const size_t last = c->n - 1, k = c->rising_from;
+    /* Above node k the percent never falls, so at most one segment there
+     * has P_fine < p <= P_coarse, and when P[k] < p <= P[last] one does
+     * (the first node at or above p closes it): the highest such segment,
+     * the one the scan below would find first, found by bisection (D_x is
+     * asked for several times per Monte Carlo draw). */
+    if (c->percent[k] < p && p <= c->percent[last]) {
+        size_t lo = k, hi = last; /* P[lo] < p <= P[hi] */
+        while (hi - lo > 1) {
+            const size_t mid = lo + (hi - lo) / 2;
+            if (c->percent[mid] < p)
+                lo = mid;
+            else
+                hi = mid;
         }
-        double x = NAN;
-        if (c->impl != NULL) {
-            enum sg_status st = steffen_solve(c, i, p, &x, err);
-            if (st != SG_OK)
-                return st;
-        } else {
-            x = c->log10_d[i - 1] + (p - pf) * (c->log10_d[i] - c->log10_d[i - 1]) / (pc - pf);
-        }
-        *d_mm = pow(10.0, x);
-        return SG_OK;
+        return diameter_on_segment(c, hi, p, d_mm, err);
     }
+    /* no segment and no node has a p outside the nodes' range */
+    if (p < c->percent_min || p > c->percent_max)
+        return not_reached(c, p, err);
+    /* scan from the coarse end: first rising segment with P_fine < p <=
+     * P_coarse (none above node k, as said above, and segment k falls) */
+    for (size_t i = k; i >= 1; i--)
+        if (c->percent[i - 1] < p && p <= c->percent[i])
+            return diameter_on_segment(c, i, p, d_mm, err);
     /* reached only at a node (the finest point or a local minimum) */
     for (size_t i = c->n; i-- > 0;)
         if (c->percent[i] == p) {

@@ -54,7 +54,7 @@ enum sg_status sg_pipette_reduce(const struct sg_pipette_input *in, struct sg_pi
     out->water_density_kg_m3 = rho_w;
     out->viscosity_pa_s = eta;
     out->density_diff_kg_m3 =
-        sg_stokes_density_diff_kg_m3(in->standard, in->particle_density_mg_m3, in->temp_c);
+        sg_stokes_density_diff_rho_w_kg_m3(in->standard, in->particle_density_mg_m3, rho_w);
     double d_m = 0.0;
     st = sg_stokes_diameter_m(eta, in->depth_mm / 1000.0, out->density_diff_kg_m3, in->elapsed_min * 60.0,
                               &d_m, err);

@@ -304,8 +304,9 @@ static void check_id(struct checker *c, const struct sg_record *rec, struct sg_s
 
 /* Elapsed times: each within range, strictly increasing. Called row by row
  * in order; *last is the previous accepted time (NAN: none, or the previous
- * row's time was refused). */
-static void check_time(struct checker *c, double t, struct sg_srcpos pos, double *last)
+ * row's time was refused). Inline: it runs for every row of every Monte
+ * Carlo draw, and the call cost as much as the test. */
+static inline void check_time(struct checker *c, double t, struct sg_srcpos pos, double *last)
 {
     if (!check(c, SG_VALUE_ELAPSED, t, pos)) {
         *last = (double)NAN;
@@ -365,10 +366,9 @@ enum sg_status sg_record_validate(const struct sg_record *rec, struct sg_diag_li
 
     /* The specimen is part of the sample. Both are needed here, each
      * within its range (else it was reported above). */
-    const struct sg_srcpos nowhere = {0, 0};
     if (rec->pos_sample_mass.line != 0 && rec->pos_specimen_mass.line != 0 &&
-        sg_record_check_value(SG_VALUE_SAMPLE_MASS, rec->sample_dry_mass_g, nowhere, NULL) == SG_OK &&
-        sg_record_check_value(SG_VALUE_SPECIMEN_MASS, rec->specimen_dry_mass_g, nowhere, NULL) == SG_OK &&
+        within(SG_VALUE_SAMPLE_MASS, rec->sample_dry_mass_g) &&
+        within(SG_VALUE_SPECIMEN_MASS, rec->specimen_dry_mass_g) &&
         rec->specimen_dry_mass_g >
             rec->sample_dry_mass_g * (1.0 + SG_RECORD_SPECIMEN_OVER_SAMPLE_MAX_PCT / 100.0))
         REPORT(&c, rec->pos_specimen_mass,

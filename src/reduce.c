@@ -67,9 +67,11 @@ static enum sg_status locate(struct sg_error *err, enum sg_status st, struct sg_
     return st;
 }
 
+/* Adds a point for each sieve of rows (not the pan) and lowers *finest_mm
+ * to the finest aperture among them. */
 static enum sg_status add_sieve_points(const struct sg_sieve_row *rows, size_t n, double mass_g,
-                                       double scale_pct, enum sg_source src, struct sg_result *res,
-                                       struct sg_error *err)
+                                       double scale_pct, enum sg_source src, bool values_only,
+                                       struct sg_result *res, double *finest_mm, struct sg_error *err)
 {
     if (n == 0)
         return SG_OK;
@@ -87,11 +89,15 @@ static enum sg_status add_sieve_points(const struct sg_sieve_row *rows, size_t n
             break;
         }
         p->diameter_mm = lines[i].aperture_mm;
+        if (p->diameter_mm < *finest_mm)
+            *finest_mm = p->diameter_mm;
+        p->percent_finer = lines[i].percent_passing * scale_pct / 100.0;
+        p->on_curve = true;
+        if (values_only)
+            continue; /* the rest stays NaN (sg_reduce_options) */
         p->retained_g = lines[i].retained_g;
         p->cumulative_retained_g = lines[i].cumulative_retained_g;
         p->percent_specimen = lines[i].percent_passing;
-        p->percent_finer = lines[i].percent_passing * scale_pct / 100.0;
-        p->on_curve = true;
     }
     if (lines != local)
         free(lines);
@@ -170,42 +176,54 @@ static enum sg_status blank_for(const struct sg_reading_row *r, double temp_c, c
 }
 
 static enum sg_status add_hydrometer_points(const struct sg_record *rec, const struct sg_constants *k,
-                                            double scale_pct, struct sg_result *res, struct sg_error *err)
+                                            double scale_pct, bool values_only, struct sg_result *res,
+                                            struct sg_error *err)
 {
     if (!k->has_depth_line)
         return sg_error_set(err, SG_EINVAL, rec->pos_hydrometer.line ? rec->pos_hydrometer.line : 1, 1,
                             "no effective-depth line for hydrometer '%s' (calibrate it in the register "
                             "or give 'test,depth_line_mm,<depth at 0>,<change per unit>')",
                             rec->hydrometer);
+    /* the test's part of the input once, each reading's part in the loop */
+    struct sg_hydrometer_input in = {
+        .scale = rec->scale,
+        .standard = rec->standard,
+        .meniscus_correction = k->meniscus_correction,
+        .depth_at_zero_mm = k->depth_at_zero_mm,
+        .depth_per_unit_mm = k->depth_per_unit_mm,
+        .particle_density_mg_m3 = rec->particle_density_mg_m3,
+        .specimen_dry_mass_g = rec->specimen_dry_mass_g,
+        .suspension_volume_ml = rec->suspension_volume_ml,
+    };
+    struct sg_hydrometer_shared sh;
+    enum sg_status st;
+    if (rec->n_readings > 0 && (st = sg_hydrometer_prepare(&in, values_only, &sh, err)) != SG_OK)
+        return locate(err, st, rec->readings[0].pos);
     size_t n_missing = 0;
     for (size_t i = 0; i < rec->n_readings; i++) {
         const struct sg_reading_row *r = &rec->readings[i];
         const double temp_c = r->temp_c + k->thermometer_offset_c;
         bool missing = false;
-        struct sg_hydrometer_input in = {
-            .scale = rec->scale,
-            .standard = rec->standard,
-            .reading = r->reading,
-            .meniscus_correction = k->meniscus_correction,
-            .depth_at_zero_mm = k->depth_at_zero_mm,
-            .depth_per_unit_mm = k->depth_per_unit_mm,
-            .temp_c = temp_c,
-            .elapsed_min = r->elapsed_min,
-            .particle_density_mg_m3 = rec->particle_density_mg_m3,
-            .specimen_dry_mass_g = rec->specimen_dry_mass_g,
-            .suspension_volume_ml = rec->suspension_volume_ml,
-        };
-        enum sg_status st = blank_for(r, temp_c, k, &in.blank_reading, &missing, err);
+        in.reading = r->reading;
+        in.temp_c = temp_c;
+        in.elapsed_min = r->elapsed_min;
+        st = blank_for(r, temp_c, k, &in.blank_reading, &missing, err);
         if (st != SG_OK)
             return st;
         n_missing += missing;
         struct sg_hydrometer_point hp;
-        st = sg_hydrometer_reduce(&in, &hp, err);
+        st = sg_hydrometer_reduce_shared(&in, &sh, &hp, err);
         if (st != SG_OK)
             return locate(err, st, r->pos);
         struct sg_point *p = sg_result_new_point(res, SG_SOURCE_HYDROMETER, r->pos.line);
         if (p == NULL)
             return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+        p->diameter_mm = hp.diameter_mm;
+        p->percent_finer = hp.percent_specimen * scale_pct / 100.0;
+        p->on_curve = true;
+        if (values_only)
+            continue; /* the rest stays NaN (sg_reduce_options) */
+        p->percent_specimen = hp.percent_specimen;
         p->elapsed_min = r->elapsed_min;
         p->temp_c = temp_c;
         p->reading = r->reading;
@@ -217,10 +235,6 @@ static enum sg_status add_hydrometer_points(const struct sg_record *rec, const s
         p->water_density_kg_m3 = hp.water_density_kg_m3;
         p->viscosity_mpa_s = hp.viscosity_pa_s * 1000.0;
         p->reynolds = hp.reynolds;
-        p->diameter_mm = hp.diameter_mm;
-        p->percent_specimen = hp.percent_specimen;
-        p->percent_finer = hp.percent_specimen * scale_pct / 100.0;
-        p->on_curve = true;
     }
     if (n_missing > 0 &&
         sg_result_add_flag(res, "no_blank", SG_SEVERITY_WARNING, rec->readings[0].pos.line,
@@ -233,7 +247,8 @@ static enum sg_status add_hydrometer_points(const struct sg_record *rec, const s
 }
 
 static enum sg_status add_pipette_points(const struct sg_record *rec, const struct sg_constants *k,
-                                         double scale_pct, struct sg_result *res, struct sg_error *err)
+                                         double scale_pct, bool values_only, struct sg_result *res,
+                                         struct sg_error *err)
 {
     if (!k->has_pipette_volume)
         return sg_error_set(err, SG_EINVAL, rec->pos_pipette_id.line ? rec->pos_pipette_id.line : 1, 1,
@@ -266,6 +281,12 @@ static enum sg_status add_pipette_points(const struct sg_record *rec, const stru
         struct sg_point *p = sg_result_new_point(res, SG_SOURCE_PIPETTE, r->pos.line);
         if (p == NULL)
             return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+        p->diameter_mm = pp.diameter_mm;
+        p->percent_finer = pp.percent_specimen * scale_pct / 100.0;
+        p->on_curve = true;
+        if (values_only)
+            continue; /* the rest stays NaN (sg_reduce_options) */
+        p->percent_specimen = pp.percent_specimen;
         p->elapsed_min = r->elapsed_min;
         p->temp_c = temp_c;
         p->effective_depth_mm = r->depth_mm;
@@ -274,42 +295,33 @@ static enum sg_status add_pipette_points(const struct sg_record *rec, const stru
         p->water_density_kg_m3 = pp.water_density_kg_m3;
         p->viscosity_mpa_s = pp.viscosity_pa_s * 1000.0;
         p->reynolds = pp.reynolds;
-        p->diameter_mm = pp.diameter_mm;
-        p->percent_specimen = pp.percent_specimen;
-        p->percent_finer = pp.percent_specimen * scale_pct / 100.0;
-        p->on_curve = true;
     }
     return SG_OK;
 }
 
-/* Sedimentation points coarser than the finest sieve are outside the Stokes
- * range and are kept off the curve (METHODS.md 6.2). */
-static void mark_coarser_than_sieve(struct sg_result *res)
-{
-    double finest = INFINITY;
-    for (size_t i = 0; i < res->n_points; i++) {
-        const struct sg_point *p = &res->points[i];
-        if ((p->source == SG_SOURCE_SIEVE || p->source == SG_SOURCE_FINE_SIEVE) && p->diameter_mm < finest)
-            finest = p->diameter_mm;
-    }
-    for (size_t i = 0; i < res->n_points; i++) {
-        struct sg_point *p = &res->points[i];
-        if ((p->source == SG_SOURCE_HYDROMETER || p->source == SG_SOURCE_PIPETTE) && p->diameter_mm >= finest) {
-            p->flags |= SG_PF_COARSER_THAN_SIEVE;
-            p->on_curve = false;
-        }
-    }
-}
+/* Curves have a few dozen points: gathered on the stack (a Monte Carlo draw
+ * builds one). */
+#define CURVE_POINTS_ON_STACK 128
 
-static enum sg_status build_curve(const struct sg_reduce_options *opt, struct sg_result *res,
-                                  struct sg_error *err)
+/* Builds the curve from the points on it. Sedimentation points at or
+ * coarser than the finest sieve (finest_sieve_mm, INFINITY when there is
+ * none) are outside the Stokes range: they are flagged and kept off the
+ * curve (METHODS.md 6.2), in the same pass. */
+static enum sg_status build_curve(const struct sg_reduce_options *opt, double finest_sieve_mm,
+                                  struct sg_result *res, struct sg_error *err)
 {
-    struct sg_curve_point *cp = malloc((res->n_points ? res->n_points : 1) * sizeof *cp);
+    struct sg_curve_point local[CURVE_POINTS_ON_STACK];
+    struct sg_curve_point *cp = res->n_points <= CURVE_POINTS_ON_STACK ? local : malloc(res->n_points * sizeof *cp);
     if (cp == NULL)
         return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory building the curve");
     size_t n = 0;
     for (size_t i = 0; i < res->n_points; i++) {
-        const struct sg_point *p = &res->points[i];
+        struct sg_point *p = &res->points[i];
+        if ((p->source == SG_SOURCE_HYDROMETER || p->source == SG_SOURCE_PIPETTE) &&
+            p->diameter_mm >= finest_sieve_mm) {
+            p->flags |= SG_PF_COARSER_THAN_SIEVE;
+            p->on_curve = false;
+        }
         if (!p->on_curve)
             continue;
         cp[n].diameter_mm = p->diameter_mm;
@@ -320,7 +332,8 @@ static enum sg_status build_curve(const struct sg_reduce_options *opt, struct sg
     struct sg_error cerr;
     sg_error_clear(&cerr);
     enum sg_status st = sg_curve_build(&res->curve, cp, n, opt->interp, &cerr);
-    free(cp);
+    if (cp != local)
+        free(cp);
     if (st == SG_EDOM) {
         /* Too few points for a curve: results are still the points; the
          * summary says why each quantity is not determined. */
@@ -355,34 +368,39 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
     if (st != SG_OK)
         return st;
 
-    double pp_split = 100.0;
+    double pp_split = 100.0, finest_sieve_mm = INFINITY;
     if (rec->n_sieve > 0 && !opt->values_only && (st = check_split_sieve(rec, res, err)) != SG_OK)
         return st;
     if (rec->n_sieve > 0) {
         pp_split = sg_sieve_percent_passing(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g,
                                             rec->split_aperture_mm);
         if ((st = add_sieve_points(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g, 100.0, SG_SOURCE_SIEVE,
-                                   res, err)) != SG_OK)
+                                   opt->values_only, res, &finest_sieve_mm, err)) != SG_OK)
             return st;
     }
     res->pp_split = pp_split;
     if ((st = add_sieve_points(rec->fine_sieve, rec->n_fine_sieve, rec->specimen_dry_mass_g, pp_split,
-                               SG_SOURCE_FINE_SIEVE, res, err)) != SG_OK)
+                               SG_SOURCE_FINE_SIEVE, opt->values_only, res, &finest_sieve_mm, err)) != SG_OK)
         return st;
     if (rec->method == SG_METHOD_HYDROMETER)
-        st = add_hydrometer_points(rec, k, pp_split, res, err);
+        st = add_hydrometer_points(rec, k, pp_split, opt->values_only, res, err);
     else
-        st = add_pipette_points(rec, k, pp_split, res, err);
+        st = add_pipette_points(rec, k, pp_split, opt->values_only, res, err);
     if (st != SG_OK)
         return st;
 
-    mark_coarser_than_sieve(res);
-    if ((st = build_curve(opt, res, err)) != SG_OK)
+    if ((st = build_curve(opt, finest_sieve_mm, res, err)) != SG_OK)
         return st;
 
-    if ((st = sg_result_add_value(res, "split_passing_pct", "%", pp_split,
-                                  "percent of the whole sample passing the split sieve")) != SG_OK)
-        return sg_error_set(err, st, 0, 0, "out of memory");
+    /* the row from a padded name, with no note in a draw (values_only):
+     * sg_result_add_value's work without measuring and copying strings */
+    static const char split_name[SG_QNAME_MAX] = "split_passing_pct";
+    struct sg_quantity *q = sg_result_new_quantity(
+        res, split_name, "%", opt->values_only ? NULL : "percent of the whole sample passing the split sieve");
+    if (q == NULL)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
+    q->determined = isfinite(pp_split);
+    q->value = pp_split;
     if ((st = sg_classify_summarise(&res->curve, rec, opt, res, err)) != SG_OK)
         return st;
     if ((st = sg_plasticity_summarise(rec, opt, res, err)) != SG_OK ||

@@ -33,10 +33,12 @@ enum sg_status sg_sieve_reduce(const struct sg_sieve_row *rows, size_t n, double
                                         .retained_g = r->retained_g,
                                         .line = r->pos.line};
     }
-    /* records list the stack from the top; sort only when they do not */
+    /* records list the stack from the top; sort only when they do not
+     * (by_aperture_desc(a, b) <= 0 written out: it runs in every Monte
+     * Carlo draw) */
     bool sorted = true;
     for (size_t i = 1; i < n && sorted; i++)
-        sorted = by_aperture_desc(&out[i - 1], &out[i]) <= 0;
+        sorted = !(out[i - 1].aperture_mm < out[i].aperture_mm);
     if (!sorted)
         qsort(out, n, sizeof *out, by_aperture_desc);
     double cmr = 0.0;

@@ -66,15 +66,21 @@ double sg_stokes_max_diameter_m(double viscosity_pa_s, double water_density_kg_m
 double sg_stokes_density_diff_kg_m3(enum sg_standard standard, double particle_density_mg_m3,
                                     double temp_c)
 {
+    return sg_stokes_density_diff_rho_w_kg_m3(standard, particle_density_mg_m3, sg_water_density_kg_m3(temp_c));
+}
+
+double sg_stokes_density_diff_rho_w_kg_m3(enum sg_standard standard, double particle_density_mg_m3,
+                                          double water_density_kg_m3)
+{
     const double rho_s = particle_density_mg_m3 * 1000.0;
     switch (standard) {
     case SG_STANDARD_BS1377_2:
         return rho_s - SG_UNIT_LIQUID_DENSITY_KG_M3;
     case SG_STANDARD_ASTM_D7928:
-        return sg_water_density_kg_m3(temp_c) * (particle_density_mg_m3 - 1.0);
+        return water_density_kg_m3 * (particle_density_mg_m3 - 1.0);
     case SG_STANDARD_NONE:
     case SG_STANDARD_ISO17892_4:
         break;
     }
-    return rho_s - sg_water_density_kg_m3(temp_c);
+    return rho_s - water_density_kg_m3;
 }

@@ -435,6 +435,13 @@ Test(curve, build_errors)
     cr_assert_eq(sg_curve_build(&c, nan_d, 2, SG_INTERP_LOGLINEAR, &e), SG_EINVAL);
     const struct sg_curve_point inf_p[] = {{0.1, INFINITY, 0}, {0.2, 22.0, 1}};
     cr_assert_eq(sg_curve_build(&c, inf_p, 2, SG_INTERP_LOGLINEAR, &e), SG_EINVAL);
+    /* one bad point alone is refused as bad, not as too few; of several,
+     * the first in input order is named */
+    const struct sg_curve_point bad_one[] = {{-0.1, 20.0, 0}};
+    cr_assert_eq(sg_curve_build(&c, bad_one, 1, SG_INTERP_LOGLINEAR, &e), SG_EINVAL);
+    const struct sg_curve_point two_bad[] = {{1.0, 90.0, 0}, {0.5, NAN, 0}, {0.3, 40.0, 0}, {-0.2, 22.0, 1}};
+    cr_assert_eq(sg_curve_build(&c, two_bad, 4, SG_INTERP_LOGLINEAR, &e), SG_EINVAL);
+    cr_assert(strstr(e.msg, "curve point 2 at 0.5 mm: percent finer nan") != NULL, "%s", e.msg);
     const struct sg_curve_point ok[] = {{0.1, 20.0, 0}, {0.2, 22.0, 1}};
     cr_assert_eq(sg_curve_build(&c, ok, 2, (enum sg_interp)7, &e), SG_EINVAL);
     cr_assert_eq(c.n, 0);
@@ -464,4 +471,56 @@ Test(curve, query_errors)
     cr_assert_eq(sg_curve_diameter_at(&c, 10.0, NULL, &e), SG_EINVAL);
     cr_assert_eq(sg_curve_diameter_at(&c, 10.0, &v, NULL), SG_OK); /* err may be NULL */
     sg_curve_release(&c);
+}
+
+/* The convention of sg_curve_diameter_at as curve.h states it, by a plain
+ * scan of the nodes: the diameter in log10, or NAN where p is not reached. */
+static double documented_log10_d(const struct sg_curve *c, double p)
+{
+    for (size_t i = c->n - 1; i >= 1; i--) {
+        const double pf = c->percent[i - 1], pc = c->percent[i];
+        if (pf < p && p <= pc)
+            return c->log10_d[i - 1] + (p - pf) * (c->log10_d[i] - c->log10_d[i - 1]) / (pc - pf);
+    }
+    for (size_t i = c->n; i-- > 0;)
+        if (c->percent[i] == p)
+            return c->log10_d[i];
+    return NAN;
+}
+
+Test(curve, diameter_at_follows_the_scan_on_any_shape)
+{
+    /* Curves that rise, fall and have plateaus (percent on a 5 % grid so
+     * that equal nodes and a p equal to a node are common), asked at every
+     * 2.5 %: the answer is the documented scan's, on rising tails, falls
+     * and plateaus alike. */
+    gsl_rng *g = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(g, 7);
+    for (int trial = 0; trial < 300; trial++) {
+        struct sg_curve_point pts[12];
+        const size_t n = 2 + gsl_rng_uniform_int(g, 11);
+        double pct = 5.0 * (double)gsl_rng_uniform_int(g, 5);
+        for (size_t i = 0; i < n; i++) {
+            pts[i] = (struct sg_curve_point){0.001 * pow(2.0, (double)i), pct, 2};
+            pct += 5.0 * ((double)gsl_rng_uniform_int(g, 5) - (trial % 3 == 0 ? 0.0 : 1.0));
+            pct = pct < 0.0 ? 0.0 : pct > 100.0 ? 100.0 : pct;
+        }
+        struct sg_curve c;
+        sg_curve_init(&c);
+        cr_assert_eq(sg_curve_build(&c, pts, n, SG_INTERP_LOGLINEAR, NULL), SG_OK);
+        for (double p = -2.5; p <= 102.5; p += 2.5) {
+            const double want = documented_log10_d(&c, p);
+            double d = NAN;
+            const enum sg_status st = sg_curve_diameter_at(&c, p, &d, NULL);
+            if (isnan(want)) {
+                cr_assert_eq(st, SG_EDOM, "trial %d, p %g", trial, p);
+            } else {
+                cr_assert_eq(st, SG_OK, "trial %d, p %g", trial, p);
+                cr_assert(d == pow(10.0, want), "trial %d, p %g: %.17g, scan %.17g", trial, p, d,
+                          pow(10.0, want));
+            }
+        }
+        sg_curve_release(&c);
+    }
+    gsl_rng_free(g);
 }

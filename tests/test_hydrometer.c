@@ -2,6 +2,7 @@
  * depth, percent of specimen and Stokes diameter. */
 #include <criterion/criterion.h>
 #include <math.h>
+#include <string.h>
 
 #include "sedgrade/hydrometer.h"
 
@@ -141,4 +142,33 @@ Test(hydrometer, errors_say_what_to_do)
     in.particle_density_mg_m3 = 0.95;
     cr_assert_eq(sg_hydrometer_reduce(&in, &out, &err), SG_EINVAL);
     cr_assert(strstr(err.msg, "must be greater than 1 (give it in Mg/m3") != NULL, "%s", err.msg);
+}
+
+/* The test's part prepared once serves every reading, with the results of
+ * sg_hydrometer_reduce to the bit; values_only leaves out only the velocity
+ * and Reynolds number. Inputs: the V2-B readings above. */
+Test(hydrometer, prepared_once_same_results)
+{
+    const double t[] = {0.5, 8, 1440};
+    const double r[] = {30.0, 21.5, 7.0};
+    struct sg_hydrometer_input in = {
+        .scale = SG_SCALE_DENSITY, .standard = SG_STANDARD_BS1377_2, .blank_reading = 3.0,
+        .meniscus_correction = 0.5, .depth_at_zero_mm = 175.0, .depth_per_unit_mm = -2.30, .temp_c = 25.0,
+        .particle_density_mg_m3 = 2.65, .specimen_dry_mass_g = 50.0, .suspension_volume_ml = 1000.0};
+    struct sg_hydrometer_shared full, quick;
+    cr_assert_eq(sg_hydrometer_prepare(&in, false, &full, NULL), SG_OK);
+    cr_assert_eq(sg_hydrometer_prepare(&in, true, &quick, NULL), SG_OK);
+    for (int i = 0; i < 3; i++) {
+        in.elapsed_min = t[i];
+        in.reading = r[i];
+        struct sg_hydrometer_point a, b, c;
+        cr_assert_eq(sg_hydrometer_reduce(&in, &a, NULL), SG_OK);
+        cr_assert_eq(sg_hydrometer_reduce_shared(&in, &full, &b, NULL), SG_OK);
+        cr_assert_eq(sg_hydrometer_reduce_shared(&in, &quick, &c, NULL), SG_OK);
+        cr_assert(memcmp(&a, &b, sizeof a) == 0, "t %g", t[i]);
+        cr_assert(isnan(c.velocity_mm_s) && isnan(c.reynolds), "t %g", t[i]);
+        c.velocity_mm_s = a.velocity_mm_s;
+        c.reynolds = a.reynolds;
+        cr_assert(memcmp(&a, &c, sizeof a) == 0, "t %g", t[i]);
+    }
 }

@@ -350,6 +350,11 @@ static void same_values(const struct sg_record *rec, const struct sg_constants *
         for (size_t i = 0; i < a.n_points; i++) {
             cr_assert(memcmp(&r->points[i].percent_finer, &a.points[i].percent_finer, sizeof(double)) == 0);
             cr_assert(memcmp(&r->points[i].diameter_mm, &a.points[i].diameter_mm, sizeof(double)) == 0);
+            /* the other fields a draw fills (reduce.h, values_only) */
+            cr_assert_eq(r->points[i].source, a.points[i].source);
+            cr_assert_eq(r->points[i].line, a.points[i].line);
+            cr_assert_eq(r->points[i].on_curve, a.points[i].on_curve);
+            cr_assert_eq(r->points[i].flags & SG_PF_COARSER_THAN_SIEVE, a.points[i].flags & SG_PF_COARSER_THAN_SIEVE);
         }
     }
     sg_result_release(&a);

@@ -77,6 +77,13 @@ Test(stokes, density_term_by_standard)
     cr_assert(fabs(sg_stokes_density_diff_kg_m3(SG_STANDARD_ISO17892_4, 2.71, t) - (2710.0 - rho_w)) < 1e-9);
     cr_assert(fabs(sg_stokes_density_diff_kg_m3(SG_STANDARD_BS1377_2, 2.71, t) - 1710.0) < 1e-9);
     cr_assert(fabs(sg_stokes_density_diff_kg_m3(SG_STANDARD_ASTM_D7928, 2.71, t) - rho_w * 1.71) < 1e-9);
+    /* given the water density, the very same value */
+    const enum sg_standard all[] = {SG_STANDARD_NONE, SG_STANDARD_ASTM_D7928, SG_STANDARD_BS1377_2,
+                                    SG_STANDARD_ISO17892_4};
+    for (size_t i = 0; i < sizeof all / sizeof all[0]; i++)
+        cr_assert(sg_stokes_density_diff_rho_w_kg_m3(all[i], 2.71, rho_w) ==
+                      sg_stokes_density_diff_kg_m3(all[i], 2.71, t),
+                  "standard %d", (int)all[i]);
 }
 
 Test(stokes, invalid_inputs)

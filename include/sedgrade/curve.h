@@ -38,6 +38,8 @@ struct sg_curve {
     size_t n;         /* number of nodes (distinct diameters) */
     double *log10_d;  /* strictly increasing, n values */
     double *percent;  /* percent finer at each node, n values */
+    double percent_min, percent_max; /* lowest and highest percent of the nodes */
+    size_t rising_from; /* the percent never falls from node rising_from up to the coarsest */
     void *impl;       /* GSL interpolation state (monotone method, n >= 3); NULL otherwise */
     /* storage kept from build to build (sg_curve_clear keeps it): */
     size_t cap;       /* room in log10_d and percent, nodes */

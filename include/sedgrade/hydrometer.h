@@ -3,6 +3,8 @@
 #ifndef SEDGRADE_HYDROMETER_H
 #define SEDGRADE_HYDROMETER_H
 
+#include <stdbool.h>
+
 #include "sedgrade/error.h"
 #include "sedgrade/record.h"
 
@@ -43,11 +45,37 @@ struct sg_hydrometer_point {
  * Gs is the particle density in Mg/m3. Returns NaN for SG_SCALE_NONE or Gs <= 1. */
 double sg_hydrometer_concentration_factor(enum sg_scale scale, double particle_density_mg_m3);
 
-/* Reduces one reading. Returns SG_OK; SG_EINVAL for a non-positive time,
- * mass or volume, a scale of SG_SCALE_NONE or a non-positive effective depth;
- * SG_EDOM for a temperature outside 0-40 C. The message has no location:
- * the caller adds the row's line. */
+/* What every reading of a test shares, checked and worked out once by
+ * sg_hydrometer_prepare (a test has a dozen readings, and a Monte Carlo run
+ * reduces them again in every draw). */
+struct sg_hydrometer_shared {
+    double concentration_factor; /* g/L per scale unit (sg_hydrometer_concentration_factor) */
+    double suspension_volume_l;
+    bool values_only; /* velocity_mm_s and reynolds are left NaN (a Monte Carlo draw reads neither) */
+};
+
+/* Reduces one reading. Returns SG_OK; SG_EINVAL for a scale of
+ * SG_SCALE_NONE, a non-positive mass or volume, a particle density not
+ * above 1, a non-positive time or a non-positive effective depth (checked
+ * in that order); SG_EDOM for a temperature outside 0-40 C. The message has
+ * no location: the caller adds the row's line. sg_hydrometer_prepare
+ * followed by sg_hydrometer_reduce_shared. */
 enum sg_status sg_hydrometer_reduce(const struct sg_hydrometer_input *in, struct sg_hydrometer_point *out,
                                     struct sg_error *err);
+
+/* The test's part of sg_hydrometer_reduce: checks in's scale, specimen
+ * mass, suspension volume and particle density (the messages of
+ * sg_hydrometer_reduce) and fills sh. With values_only the readings
+ * reduced with sh skip the settling velocity and Reynolds number (left
+ * NaN); every other output is the same. */
+enum sg_status sg_hydrometer_prepare(const struct sg_hydrometer_input *in, bool values_only,
+                                     struct sg_hydrometer_shared *sh, struct sg_error *err);
+
+/* The reading's part: reduces in with sh prepared from an input with the
+ * same scale, specimen mass, suspension volume and particle density (the
+ * other fields may differ from reading to reading). Same results and
+ * statuses as sg_hydrometer_reduce for those inputs. */
+enum sg_status sg_hydrometer_reduce_shared(const struct sg_hydrometer_input *in, const struct sg_hydrometer_shared *sh,
+                                           struct sg_hydrometer_point *out, struct sg_error *err);
 
 #endif

@@ -47,7 +47,10 @@ struct sg_reduce_options {
     const double *extra_dx;      /* additional D_x percentages to report (may be NULL) */
     size_t n_extra_dx;
     bool values_only;            /* Monte Carlo draws (mc.h): values only; QC, register notes and
-                                    summary notes may be skipped. Default false. */
+                                    summary notes may be skipped, and of each point only source,
+                                    line, diameter_mm, percent_finer, on_curve and the flag
+                                    SG_PF_COARSER_THAN_SIEVE are filled (no QC flags; the
+                                    other values stay NaN). Default false. */
     bool skip_notes;             /* every summary note left empty, nothing else changed (QC, flags and
                                     their messages kept): for callers that write no per-test summary
                                     (a batch with --outputs none). Default false. */

@@ -36,4 +36,10 @@ double sg_stokes_max_diameter_m(double viscosity_pa_s, double water_density_kg_m
 double sg_stokes_density_diff_kg_m3(enum sg_standard standard, double particle_density_mg_m3,
                                     double temp_c);
 
+/* The same with the water density at the temperature given, for a caller
+ * that has it already (sg_water_density_kg_m3(temp_c), as sg_water_properties
+ * gives it): the same value, without working the density out again. */
+double sg_stokes_density_diff_rho_w_kg_m3(enum sg_standard standard, double particle_density_mg_m3,
+                                          double water_density_kg_m3);
+
 #endif
