@@ -273,6 +273,19 @@ struct reading {
     const char *why;
 };
 
+/* Keeps key k of the result (result.h): the number of the row at index
+ * row, as a lookup by its name would give it. */
+static void keep(struct ctx *x, enum sg_key k, size_t row)
+{
+    x->res->keys[k] = sg_quantity_number(&x->res->quantities[row]);
+}
+
+/* Keeps key k: the curve's percent finer at bound b, NaN where it gives none. */
+static void keep_reading(struct ctx *x, enum sg_key k, enum bound b)
+{
+    x->res->keys[k] = x->pst[b] == SG_OK ? x->p[b] : (double)NAN;
+}
+
 static enum sg_status nomem(struct ctx *x)
 {
     return sg_error_set(x->err, SG_ENOMEM, 0, 0, "out of memory adding summary quantities");
@@ -890,6 +903,7 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
                          ? "; the record gives them: the group symbol with them is uscs_symbol"
                          : "";
     enum sg_status st;
+    res->has_keys = false; /* until every key is kept */
 
     static const struct {
         double p;
@@ -899,16 +913,25 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
               {50.0, "d50_mm", "50"}, {60.0, "d60_mm", "60"}, {85.0, "d85_mm", "85"}};
     struct reading d[6];
     char d_why[6][MSG_MAX];
+    const size_t d10_row = res->n_quantities; /* then d15_mm, ..., one row each */
     for (size_t i = 0; i < sizeof dp / sizeof dp[0]; i++)
         if ((st = add_dx(&x, dp[i].p, dp[i].name, dp[i].shown, &d[i], d_why[i])) != SG_OK)
             return st;
+    keep(&x, SG_KEY_D10_MM, d10_row);
+    keep(&x, SG_KEY_D15_MM, d10_row + 1);
     double cu, cc;
     if ((st = add_cu_cc(&x, &d[0], &d[2], &d[4], &cu, &cc)) != SG_OK)
         return st;
+    keep(&x, SG_KEY_CU, res->n_quantities - 2);
+    keep(&x, SG_KEY_CC, res->n_quantities - 1);
 
     if ((st = read_bounds(&x)) != SG_OK)
         return st;
+    keep_reading(&x, SG_KEY_P_75_MM_PCT, B_75);
+    keep_reading(&x, SG_KEY_P_4_75_MM_PCT, B_4_75);
+    keep_reading(&x, SG_KEY_P_0_075_MM_PCT, B_0_075);
     struct reading p2;
+    const size_t clay_row = res->n_quantities;
     if ((st = add_fraction(&x, QN("clay_pct"), B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
         (st = add_fraction(&x, QN("silt_pct"), B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
         (st = add_fraction(&x, QN("sand_pct"), B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
@@ -916,6 +939,7 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
         (st = add_fraction(&x, QN("fines_pct"), B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
         (st = add_usda(&x, &p2)))
         return st;
+    keep(&x, SG_KEY_CLAY_PCT, clay_row);
 
     if ((st = add_extra_dx(&x, opt)) != SG_OK)
         return st;
@@ -964,13 +988,17 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
         {"passing_0_425_mm_pct", B_ZERO, B_0_425, false, "percent passing 0.425 mm (No. 40)"},
         {"passing_0_075_mm_pct", B_ZERO, B_0_075, false, "percent passing 0.075 mm (No. 200)"},
     };
-    for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++)
+    for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++) {
         if ((st = add_fraction_on(&x, fr[i].name, fr[i].lower, fr[i].upper, fr[i].of_fine_earth ? &p2 : NULL,
                                   fr[i].what)) != SG_OK)
             return st;
+        if (fr[i].lower == B_ZERO && fr[i].upper == B_0_02) /* finer_0_02_mm_pct */
+            keep(&x, SG_KEY_FINER_0_02_MM_PCT, res->n_quantities - 1);
+    }
 
     if ((st = add_uscs(&x, cu, cc)) != SG_OK || (st = add_iso_grading(&x, cu, cc)) != SG_OK ||
         (st = add_junction_gap(&x)) != SG_OK)
         return st;
+    res->has_keys = true;
     return SG_OK;
 }

@@ -10,16 +10,6 @@
 #include "sedgrade/curve.h"
 #include "sedgrade/reduce.h"
 
-/* ASTM D2487 sizes, mm (METHODS.md 8.2). */
-#define USCS_GRAVEL_COBBLE_MM 75.0
-#define USCS_SAND_GRAVEL_MM 4.75
-#define USCS_FINES_MM 0.075
-/* log10 of those sizes, correctly rounded (checked against 60-digit decimal
- * arithmetic; what log10() returns for them), so that no logarithm is taken
- * per reading of the curve. */
-#define LOG10_75 1.8750612633917
-#define LOG10_4_75 0.6766936096248666
-#define LOG10_0_075 (-1.1249387366083)
 /* D2487 grading limits (METHODS.md 8.2). */
 #define USCS_GW_CU_MIN 4.0
 #define USCS_SW_CU_MIN 6.0
@@ -211,23 +201,17 @@ static enum sg_status text(struct ctx *x, const char *name, const char *t, const
     ((x)->quiet ? SG_OK                                                                            \
                 : (sg_result_add_flag((x)->res, (name), (sev), 0, __VA_ARGS__) == SG_OK ? SG_OK : nomem(x)))
 
-/* A determined numeric quantity of res, or NaN. */
-static double quantity(const struct sg_result *res, const char *name)
+/* D2487 fractions of the material finer than 75 mm, from the curve's
+ * percent finer at 75, 4.75 and 0.075 mm (METHODS.md 8.2). */
+static void uscs_fractions(const struct sg_result *res, double *gravel, double *sand, double *fines)
 {
-    const struct sg_quantity *q = sg_result_quantity(res, name);
-    return (q != NULL && q->determined && !q->is_text) ? q->value : (double)NAN;
-}
-
-/* D2487 fractions of the material finer than 75 mm, from the curve. */
-static void uscs_fractions(const struct sg_curve *c, double *gravel, double *sand, double *fines)
-{
-    double p75, p475, p0075;
+    const double p75 = sg_result_key(res, SG_KEY_P_75_MM_PCT), p0075 = sg_result_key(res, SG_KEY_P_0_075_MM_PCT);
     *gravel = *sand = *fines = NAN;
-    if (sg_curve_percent_at_log10(c, USCS_GRAVEL_COBBLE_MM, LOG10_75, &p75, NULL) != SG_OK ||
-        sg_curve_percent_at_log10(c, USCS_FINES_MM, LOG10_0_075, &p0075, NULL) != SG_OK || !(p75 > 0.0))
+    if (isnan(p0075) || !(p75 > 0.0))
         return;
     *fines = 100.0 * p0075 / p75;
-    if (sg_curve_percent_at_log10(c, USCS_SAND_GRAVEL_MM, LOG10_4_75, &p475, NULL) != SG_OK)
+    const double p475 = sg_result_key(res, SG_KEY_P_4_75_MM_PCT);
+    if (isnan(p475))
         return;
     *gravel = 100.0 * (p75 - p475) / p75;
     *sand = 100.0 * (p475 - p0075) / p75;
@@ -344,8 +328,9 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
 
 static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, double ll, double pi)
 {
-    struct sg_uscs_input in = {.cu = quantity(res, "cu"), .cc = quantity(res, "cc"), .ll_pct = ll, .pi_pct = pi};
-    uscs_fractions(&res->curve, &in.gravel_pct, &in.sand_pct, &in.fines_pct);
+    struct sg_uscs_input in = {
+        .cu = sg_result_key(res, SG_KEY_CU), .cc = sg_result_key(res, SG_KEY_CC), .ll_pct = ll, .pi_pct = pi};
+    uscs_fractions(res, &in.gravel_pct, &in.sand_pct, &in.fines_pct);
     const char *why = "";
     const char *sym = sg_plasticity_uscs_symbol(&in, &why);
     enum sg_status st;
@@ -389,7 +374,7 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
     enum sg_status st;
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
-    const double cf = quantity(res, "clay_pct");
+    const double cf = sg_result_key(res, SG_KEY_CLAY_PCT);
     if (!isfinite(pi)) {
         if ((st = undet(x, "activity", "", "not determined: needs the plasticity index")) != SG_OK)
             return st;

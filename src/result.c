@@ -33,6 +33,7 @@ void sg_result_clear(struct sg_result *r)
     r->id[0] = '\0';
     r->calibration_used[0] = '\0';
     r->pp_split = NAN;
+    r->has_keys = false;
     sg_curve_clear(&r->curve); /* its buffers serve the next record */
 }
 
@@ -158,6 +159,36 @@ struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *na
             return &r->quantities[i];
     }
     return NULL;
+}
+
+double sg_result_key(const struct sg_result *r, enum sg_key k)
+{
+    /* ASTM D2487 sizes, mm, and their log10, correctly rounded (checked
+     * against 60-digit decimal arithmetic; what log10() returns for them) */
+    static const struct {
+        const char *row; /* NULL: a reading of the curve at d_mm */
+        double d_mm, log10_d;
+    } src[SG_N_KEYS] = {
+        [SG_KEY_D10_MM] = {"d10_mm", 0.0, 0.0},
+        [SG_KEY_D15_MM] = {"d15_mm", 0.0, 0.0},
+        [SG_KEY_CU] = {"cu", 0.0, 0.0},
+        [SG_KEY_CC] = {"cc", 0.0, 0.0},
+        [SG_KEY_CLAY_PCT] = {"clay_pct", 0.0, 0.0},
+        [SG_KEY_FINER_0_02_MM_PCT] = {"finer_0_02_mm_pct", 0.0, 0.0},
+        [SG_KEY_P_75_MM_PCT] = {NULL, 75.0, 1.8750612633917},
+        [SG_KEY_P_4_75_MM_PCT] = {NULL, 4.75, 0.6766936096248666},
+        [SG_KEY_P_0_075_MM_PCT] = {NULL, 0.075, -1.1249387366083},
+    };
+    if ((unsigned)k >= SG_N_KEYS)
+        return NAN;
+    if (r->has_keys)
+        return r->keys[k];
+    if (src[k].row != NULL) {
+        const struct sg_quantity *q = sg_result_quantity(r, src[k].row);
+        return q != NULL ? sg_quantity_number(q) : (double)NAN;
+    }
+    double p;
+    return sg_curve_percent_at_log10(&r->curve, src[k].d_mm, src[k].log10_d, &p, NULL) == SG_OK ? p : (double)NAN;
 }
 
 /* Every field of *p, one store each (no memset and no struct copy: a copy

@@ -56,12 +56,6 @@ enum sg_status sg_screens_terzaghi(double base_d15_mm, double base_d85_mm, doubl
     return SG_OK;
 }
 
-static double quantity(const struct sg_result *res, const char *name)
-{
-    const struct sg_quantity *q = sg_result_quantity(res, name);
-    return (q != NULL && q->determined && !q->is_text) ? q->value : (double)NAN;
-}
-
 static enum sg_status nomem(struct sg_error *err)
 {
     return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory adding the screens");
@@ -71,7 +65,7 @@ static enum sg_status add_hazen(struct sg_result *res, bool quiet, struct sg_err
 {
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
-    const double d10 = quantity(res, "d10_mm"), cu = quantity(res, "cu");
+    const double d10 = sg_result_key(res, SG_KEY_D10_MM), cu = sg_result_key(res, SG_KEY_CU);
     enum sg_status st;
     if (!isfinite(d10))
         st = sg_result_add_undetermined(res, "hazen_k_cm_s", "cm/s",
@@ -101,7 +95,7 @@ static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_err
 {
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
-    double p = quantity(res, "finer_0_02_mm_pct");
+    double p = sg_result_key(res, SG_KEY_FINER_0_02_MM_PCT);
     if (!isfinite(p) && sg_curve_percent_at(&res->curve, SG_FROST_SIZE_MM, &p, NULL) != SG_OK)
         p = NAN;
     enum sg_status st;
@@ -110,7 +104,7 @@ static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_err
                                         quiet ? "" : "not determined: the percent finer than 0.02 mm is not "
                                                      "determined");
     } else {
-        const double cu = quantity(res, "cu");
+        const double cu = sg_result_key(res, SG_KEY_CU);
         const bool uniform = isfinite(cu) && cu < SG_FROST_UNIFORM_CU_MAX;
         const enum sg_frost_class c = sg_screens_frost(p, uniform);
         if (!quiet)
@@ -150,7 +144,7 @@ static enum sg_status ratio_row(struct sg_result *res, const char *name, bool ha
 static enum sg_status add_filter(struct sg_result *res, const struct sg_reduce_options *opt, bool quiet,
                                  struct sg_error *err)
 {
-    const double d15 = quantity(res, "d15_mm");
+    const double d15 = sg_result_key(res, SG_KEY_D15_MM);
     const double base15 = opt->base_d15_mm, base85 = opt->base_d85_mm;
     const char *id = opt->base_soil_id;
     char note[SG_QNOTE_MAX];

@@ -76,6 +76,23 @@ struct sg_flag {
     char message[SG_FLAG_MSG_MAX];
 };
 
+/* Numbers of the summary that the later summaries read back (plasticity,
+ * screens): rows by name, and the curve's percent finer at the ASTM D2487
+ * sizes. sg_classify_summarise keeps them as it adds the rows, so that a
+ * Monte Carlo draw (which runs every summary) needs no name lookups. */
+enum sg_key {
+    SG_KEY_D10_MM,            /* row d10_mm */
+    SG_KEY_D15_MM,            /* row d15_mm */
+    SG_KEY_CU,                /* row cu */
+    SG_KEY_CC,                /* row cc */
+    SG_KEY_CLAY_PCT,          /* row clay_pct */
+    SG_KEY_FINER_0_02_MM_PCT, /* row finer_0_02_mm_pct */
+    SG_KEY_P_75_MM_PCT,       /* the curve at 75 mm */
+    SG_KEY_P_4_75_MM_PCT,     /* the curve at 4.75 mm */
+    SG_KEY_P_0_075_MM_PCT,    /* the curve at 0.075 mm */
+    SG_N_KEYS
+};
+
 struct sg_result {
     char id[64];
     struct sg_point *points;
@@ -87,6 +104,11 @@ struct sg_result {
     struct sg_curve curve;
     double pp_split;             /* percent of the whole sample passing the split sieve */
     char calibration_used[256];  /* "instrument@date;..." or "inline" */
+    /* keys[k] as sg_result_key gives it, kept by sg_classify_summarise;
+     * has_keys false (results built row by row, or before the summary):
+     * sg_result_key looks them up */
+    bool has_keys;
+    double keys[SG_N_KEYS];
 };
 
 void sg_result_init(struct sg_result *r);
@@ -155,6 +177,17 @@ static inline struct sg_quantity *sg_result_new_quantity(struct sg_result *r, co
 
 /* The quantity called name, or NULL. */
 struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *name);
+
+/* The value of a determined numeric quantity, else NaN. */
+static inline double sg_quantity_number(const struct sg_quantity *q)
+{
+    return q->determined && !q->is_text ? q->value : (double)NAN;
+}
+
+/* A number the later summaries read: with has_keys the kept one, else the
+ * row's sg_quantity_number (NaN when there is no such row) or the curve's
+ * percent finer (NaN where the curve gives none). */
+double sg_result_key(const struct sg_result *r, enum sg_key k);
 
 /* A point initialised with NaN in every numeric field that may not apply. */
 struct sg_point sg_point_blank(enum sg_source source, unsigned line);
