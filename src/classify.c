@@ -291,29 +291,28 @@ static enum sg_status nomem(struct ctx *x)
     return sg_error_set(x->err, SG_ENOMEM, 0, 0, "out of memory adding summary quantities");
 }
 
-/* Names are whole SG_QNAME_MAX-byte arrays, zero after the text (table
- * entries, or QN("...") for a literal), copied by the result as one block. */
-#define QN(s) ((const char[SG_QNAME_MAX]){s})
+/* Names and units are whole arrays, zero after the text (table entries,
+ * or SG_QNAME("...") for a literal), copied by the result as one block. */
+static const char UNIT_MM[SG_QUNIT_MAX] = "mm", UNIT_PCT[SG_QUNIT_MAX] = "%", UNIT_NONE[SG_QUNIT_MAX] = "";
 
-static enum sg_status add_value(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, double v,
+static enum sg_status add_value(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], double v,
                                 const char *note)
 {
     struct sg_quantity *q = sg_result_new_quantity(x->res, name, unit, x->quiet ? "" : note);
     if (q == NULL)
         return nomem(x);
-    q->determined = isfinite(v);
-    q->value = v;
+    sg_quantity_set_value(q, v);
     return SG_OK;
 }
 
-static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, const char *fmt,
+static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], const char *fmt,
                                 ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 4, 5)))
 #endif
     ;
 
-static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, const char *fmt,
+static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], const char *fmt,
                                 ...)
 {
     char note[SG_QNOTE_MAX];
@@ -327,9 +326,13 @@ static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], co
     return sg_result_new_quantity(x->res, name, unit, note) != NULL ? SG_OK : nomem(x);
 }
 
-static enum sg_status add_text(struct ctx *x, const char *name, const char *text, const char *note)
+static enum sg_status add_text(struct ctx *x, const char name[SG_QNAME_MAX], const char *text, const char *note)
 {
-    return sg_result_add_text(x->res, name, text, x->quiet ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_NONE, x->quiet ? "" : note);
+    if (q == NULL)
+        return nomem(x);
+    sg_quantity_set_text(q, text);
+    return SG_OK;
 }
 
 /* Copies an error message (both buffers MSG_MAX bytes). */
@@ -454,7 +457,7 @@ static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_M
     if (out != NULL)
         *out = r;
     if (!r.ok)
-        return add_undet(x, name, "mm", "D%g not determined: %s", p, r.why);
+        return add_undet(x, name, UNIT_MM, "D%g not determined: %s", p, r.why);
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
     if (!x->quiet) {
@@ -465,7 +468,7 @@ static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_M
             fmt_into(note, sizeof note, "size at which %g %% is finer (%s interpolation on log10 D)", p,
                      x->interp_word);
     }
-    return add_value(x, name, "mm", r.value, note);
+    return add_value(x, name, UNIT_MM, r.value, note);
 }
 
 /* Percent finer between two bounds (lower B_ZERO: finer than upper); the
@@ -493,7 +496,7 @@ static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MA
             if (basis != NULL)
                 v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
         }
-        struct sg_quantity *q = sg_result_new_quantity(x->res, name, "%", "");
+        struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_PCT, "");
         if (q == NULL)
             return nomem(x);
         q->determined = ok && isfinite(v);
@@ -502,14 +505,14 @@ static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MA
     }
     const struct reading r = fraction(x, lower, upper);
     if (!r.ok)
-        return add_undet(x, name, "%", "not determined: %s", r.why);
+        return add_undet(x, name, UNIT_PCT, "not determined: %s", r.why);
     double v = r.value;
     if (basis != NULL) {
         if (!basis->ok)
-            return add_undet(x, name, "%", "not determined: the basis (percent finer than 2 mm) is not: %s",
+            return add_undet(x, name, UNIT_PCT, "not determined: the basis (percent finer than 2 mm) is not: %s",
                              basis->why);
         if (!(basis->value > 0.0))
-            return add_undet(x, name, "%", "not determined: no material finer than 2 mm (%g %%)",
+            return add_undet(x, name, UNIT_PCT, "not determined: no material finer than 2 mm (%g %%)",
                              basis->value);
         v = 100.0 * r.value / basis->value;
     }
@@ -517,9 +520,9 @@ static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MA
         char note[SG_QNOTE_MAX];
         join(note, sizeof note, what, "; negative: the curve rises with falling size in this range (see the QC flags)",
              (const char *)NULL);
-        return add_value(x, name, "%", v, note);
+        return add_value(x, name, UNIT_PCT, v, note);
     }
-    return add_value(x, name, "%", v, what);
+    return add_value(x, name, UNIT_PCT, v, what);
 }
 
 static enum sg_status add_fraction(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
@@ -545,17 +548,17 @@ static enum sg_status add_cu_cc(struct ctx *x, const struct reading *d10, const 
     }
     enum sg_status st;
     if (!d10->ok || !d60->ok)
-        st = add_undet(x, QN("cu"), "", "not determined: %s not determined (Cu = D60 / D10)", missing);
+        st = add_undet(x, SG_QNAME("cu"), UNIT_NONE, "not determined: %s not determined (Cu = D60 / D10)", missing);
     else {
         *cu = d60->value / d10->value;
-        st = add_value(x, QN("cu"), "", *cu, "coefficient of uniformity D60 / D10");
+        st = add_value(x, SG_QNAME("cu"), UNIT_NONE, *cu, "coefficient of uniformity D60 / D10");
     }
     if (st != SG_OK)
         return st;
     if (!d10->ok || !d30->ok || !d60->ok)
-        return add_undet(x, QN("cc"), "", "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
+        return add_undet(x, SG_QNAME("cc"), UNIT_NONE, "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
     *cc = d30->value * d30->value / (d10->value * d60->value);
-    return add_value(x, QN("cc"), "", *cc, "coefficient of curvature D30^2 / (D10 D60)");
+    return add_value(x, SG_QNAME("cc"), UNIT_NONE, *cc, "coefficient of curvature D30^2 / (D10 D60)");
 }
 
 static enum sg_status add_usda(struct ctx *x, struct reading *p2)
@@ -578,7 +581,7 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
             all = false;
             if (!x->quiet)
                 join(why, sizeof why, bad->why, (const char *)NULL);
-            if ((st = add_undet(x, names[i], "%", "not determined: %s", bad->why)) != SG_OK)
+            if ((st = add_undet(x, names[i], UNIT_PCT, "not determined: %s", bad->why)) != SG_OK)
                 return st;
             continue;
         }
@@ -586,19 +589,19 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
             all = false;
             if (!x->quiet)
                 fmt_into(why, sizeof why, "no material finer than 2 mm (%g %%)", p2->value);
-            if ((st = add_undet(x, names[i], "%", "not determined: %s", why)) != SG_OK)
+            if ((st = add_undet(x, names[i], UNIT_PCT, "not determined: %s", why)) != SG_OK)
                 return st;
             continue;
         }
         v[i] = 100.0 * (upper[i]->value - (lower[i] ? lower[i]->value : 0.0)) / p2->value;
-        if ((st = add_value(x, names[i], "%", v[i], what[i])) != SG_OK)
+        if ((st = add_value(x, names[i], UNIT_PCT, v[i], what[i])) != SG_OK)
             return st;
     }
     if (!all)
-        return add_undet(x, QN("usda_texture"), "", "not determined: %s", why);
+        return add_undet(x, SG_QNAME("usda_texture"), UNIT_NONE, "not determined: %s", why);
     const char *cls = sg_classify_usda_texture(v[0], v[1], v[2]);
     if (cls == NULL)
-        return add_undet(x, QN("usda_texture"), "",
+        return add_undet(x, SG_QNAME("usda_texture"), UNIT_NONE,
                          "not determined: a separate is negative (sand %.1f, silt %.1f, clay %.1f %%; the curve "
                          "rises with falling size, see the QC flags)",
                          v[0], v[1], v[2]);
@@ -611,7 +614,7 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
                  100.0 - p2->value);
     else if (!x->quiet)
         join(note, sizeof note, "USDA texture triangle on the fraction finer than 2 mm", (const char *)NULL);
-    return add_text(x, "usda_texture", cls, note);
+    return add_text(x, SG_QNAME("usda_texture"), cls, note);
 }
 
 static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options *opt)
@@ -631,7 +634,7 @@ static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options
             continue;
         enum sg_status st;
         if (p <= 0.0 || p > 100.0)
-            st = add_undet(x, name, "mm", "not determined: %g %% is not a percentage in (0, 100]", p);
+            st = add_undet(x, name, UNIT_MM, "not determined: %g %% is not a percentage in (0, 100]", p);
         else
             st = add_dx(x, p, name, NULL, NULL, why);
         if (st != SG_OK)
@@ -647,15 +650,15 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     enum sg_status st;
     const struct reading *bad = !p75.ok ? &p75 : !p475.ok ? &p475 : !p0075.ok ? &p0075 : NULL;
     if (bad != NULL) {
-        if ((st = add_undet(x, QN("uscs_grading"), "", "not determined (needs P at 75, 4.75, 0.075 mm): %s",
+        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE, "not determined (needs P at 75, 4.75, 0.075 mm): %s",
                             bad->why)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "not determined (needs P at 75, 4.75, 0.075 mm): %s", bad->why);
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined (needs P at 75, 4.75, 0.075 mm): %s", bad->why);
     }
     if (!(p75.value > 0.0)) {
-        if ((st = add_undet(x, QN("uscs_grading"), "", "not determined: no material finer than 75 mm")) != SG_OK)
+        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE, "not determined: no material finer than 75 mm")) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "not determined: no material finer than 75 mm");
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined: no material finer than 75 mm");
     }
     const double fines = 100.0 * p0075.value / p75.value;
     const double gravel = 100.0 * (p75.value - p475.value) / p75.value;
@@ -676,9 +679,9 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      "ASTM D2487 fine-grained soil (fines %.1f %% >= 50 %%): grading terms apply to "
                      "coarse-grained soils",
                      fines);
-        if ((st = add_text(x, "uscs_grading", "not applicable, fine-grained", note)) != SG_OK)
+        if ((st = add_text(x, SG_QNAME("uscs_grading"), "not applicable, fine-grained", note)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "",
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE,
                          "fine-grained soil (fines %.1f %% >= 50 %%): ML, CL, MH, CH, OL or OH needs the "
                          "Atterberg limits (and organic content)%s",
                          fines, x->limits_given);
@@ -689,30 +692,30 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      "ASTM D2487: with fines over 12 %% (%s) the soil is named by the plasticity of its "
                      "fines, not by its grading",
                      basis);
-        if ((st = add_text(x, "uscs_grading", "not applicable, fines over 12 %", note)) != SG_OK)
+        if ((st = add_text(x, SG_QNAME("uscs_grading"), "not applicable, fines over 12 %", note)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "%s with fines over 12 %% (%s): %s needs the Atterberg limits%s",
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "%s with fines over 12 %% (%s): %s needs the Atterberg limits%s",
                          kind, basis, is_gravel ? "GM, GC or GC-GM" : "SM, SC or SC-SM", x->limits_given);
     }
     if (!isfinite(cu) || !isfinite(cc)) {
-        if ((st = add_undet(x, QN("uscs_grading"), "",
+        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE,
                             "not determined: Cu and Cc are needed (D10, D30 and D60; %s)", basis)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "not determined: Cu and Cc are needed (%s)", basis);
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined: Cu and Cc are needed (%s)", basis);
     }
     const bool well = sg_classify_uscs_well_graded(is_gravel, cu, cc);
     if (!x->quiet)
         fmt_into(note, sizeof note, "ASTM D2487 %s (%s): %s needs Cu >= %g and 1 <= Cc <= 3; Cu %.2f, Cc %.2f",
                  kind, basis, is_gravel ? "GW" : "SW", is_gravel ? USCS_GW_CU_MIN : USCS_SW_CU_MIN, cu, cc);
-    if ((st = add_text(x, "uscs_grading", well ? "well graded" : "poorly graded", note)) != SG_OK)
+    if ((st = add_text(x, SG_QNAME("uscs_grading"), well ? "well graded" : "poorly graded", note)) != SG_OK)
         return st;
     const char *sym = is_gravel ? (well ? "GW" : "GP") : (well ? "SW" : "SP");
     if (fines < USCS_CLEAN_MAX_PCT) {
         if (!x->quiet)
             fmt_into(note, sizeof note, "ASTM D2487 coarse-grained, fines %.1f %% < 5 %% (%s)", fines, basis);
-        return add_text(x, "uscs_group", sym, note);
+        return add_text(x, SG_QNAME("uscs_group"), sym, note);
     }
-    return add_undet(x, QN("uscs_group"), "",
+    return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE,
                      "dual symbol %s-%cM or %s-%cC (fines %.1f %%, 5-12 %%): the second part needs the "
                      "Atterberg limits of the fines%s",
                      sym, is_gravel ? 'G' : 'S', sym, is_gravel ? 'G' : 'S', fines, x->limits_given);
@@ -721,10 +724,10 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
 static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
 {
     if (!isfinite(cu) || !isfinite(cc))
-        return add_undet(x, QN("iso_grading"), "", "not determined: Cu and Cc are needed (D10, D30 and D60)");
+        return add_undet(x, SG_QNAME("iso_grading"), UNIT_NONE, "not determined: Cu and Cc are needed (D10, D30 and D60)");
     const char *term = sg_classify_iso_grading(cu, cc);
     if (term == NULL)
-        return add_undet(x, QN("iso_grading"), "",
+        return add_undet(x, SG_QNAME("iso_grading"), UNIT_NONE,
                          "no ISO 14688-2 term fits Cu %.2f, Cc %.2f (multi-graded needs Cu > 15 and 1 < Cc < 3; "
                          "gap-graded Cc < 0.5)",
                          cu, cc);
@@ -735,7 +738,7 @@ static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
                  "ISO 14688-2 from Cu %.2f and Cc %.2f (limits from memory: multi Cu > 15 and 1 < Cc < 3, "
                  "medium 6-15, even < 6, gap Cc < 0.5)",
                  cu, cc);
-    return add_text(x, "iso_grading", term, note);
+    return add_text(x, SG_QNAME("iso_grading"), term, note);
 }
 
 /* ---- junction gap ------------------------------------------------------ */
@@ -833,9 +836,9 @@ static enum sg_status add_junction_gap(struct ctx *x)
         }
     }
     if (!isfinite(a_mm))
-        return add_undet(x, name, "%", "not determined: no sieve points");
+        return add_undet(x, name, UNIT_PCT, "not determined: no sieve points");
     if (n_sed == 0)
-        return add_undet(x, name, "%", "not determined: no sedimentation points");
+        return add_undet(x, name, UNIT_PCT, "not determined: no sedimentation points");
 
     struct around ar;
     memset(&ar, 0, sizeof ar);
@@ -863,7 +866,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
         const bool all_finer = !ar.has_hi1; /* the two coarsest; else the two finest */
         const struct sed_point s0 = all_finer ? ar.lo1 : ar.hi1, s1 = all_finer ? ar.lo2 : ar.hi2;
         if (!(all_finer ? ar.has_lo2 : ar.has_hi2))
-            return add_undet(x, name, "%",
+            return add_undet(x, name, UNIT_PCT,
                              "not determined: sedimentation points at one size only (%g mm), none at the finest "
                              "sieve %g mm",
                              s0.d_mm, a_mm);
@@ -879,7 +882,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
     if (!x->quiet)
         fmt_into(note, sizeof note, "%s %g mm passing %.2f %% minus sedimentation %.2f %% at that size, %s",
                  a_from_sieve ? "sieve" : "fine sieve", a_mm, p_sieve, p_sed, how);
-    return add_value(x, name, "%", p_sieve - p_sed, note);
+    return add_value(x, name, UNIT_PCT, p_sieve - p_sed, note);
 }
 
 /* ---- entry point ------------------------------------------------------- */
@@ -932,11 +935,11 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     keep_reading(&x, SG_KEY_P_0_075_MM_PCT, B_0_075);
     struct reading p2;
     const size_t clay_row = res->n_quantities;
-    if ((st = add_fraction(&x, QN("clay_pct"), B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
-        (st = add_fraction(&x, QN("silt_pct"), B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
-        (st = add_fraction(&x, QN("sand_pct"), B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
-        (st = add_fraction(&x, QN("gravel_pct"), B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
-        (st = add_fraction(&x, QN("fines_pct"), B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
+    if ((st = add_fraction(&x, SG_QNAME("clay_pct"), B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
+        (st = add_fraction(&x, SG_QNAME("silt_pct"), B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
+        (st = add_fraction(&x, SG_QNAME("sand_pct"), B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
+        (st = add_fraction(&x, SG_QNAME("gravel_pct"), B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
+        (st = add_fraction(&x, SG_QNAME("fines_pct"), B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
         (st = add_usda(&x, &p2)))
         return st;
     keep(&x, SG_KEY_CLAY_PCT, clay_row);

@@ -104,15 +104,29 @@ enum sg_status sg_result_reserve_quantity(struct sg_result *r)
     return st;
 }
 
-/* A row named by a string: the name zero-padded first, so that equal
- * names are equal arrays (a cheap first test in mc.c). */
+void sg_quantity_copy_note(struct sg_quantity *q, const char *note)
+{
+    copy_text(q->note, sizeof q->note, note);
+}
+
+void sg_quantity_set_text(struct sg_quantity *q, const char *text)
+{
+    q->is_text = true;
+    q->determined = text != NULL && text[0] != '\0';
+    copy_text(q->text, sizeof q->text, text);
+}
+
+/* A row named by a string: the name and unit zero-padded first, so that
+ * equal names are equal arrays (a cheap first test in mc.c). */
 static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, const char *unit,
                                         const char *note)
 {
-    char padded[SG_QNAME_MAX];
-    memset(padded, 0, sizeof padded);
-    copy_text(padded, sizeof padded, name);
-    return sg_result_new_quantity(r, padded, unit, note);
+    char padded[SG_QNAME_MAX], padded_unit[SG_QUNIT_MAX] = "";
+    strncpy(padded, name, sizeof padded); /* pads with zeros: one pass, no memset first */
+    padded[sizeof padded - 1] = '\0';
+    for (size_t i = 0; unit != NULL && i + 1 < sizeof padded_unit && unit[i] != '\0'; i++) /* short: no call */
+        padded_unit[i] = unit[i];
+    return sg_result_new_quantity(r, padded, padded_unit, note);
 }
 
 enum sg_status sg_result_add_value(struct sg_result *r, const char *name, const char *unit, double value,
@@ -121,19 +135,14 @@ enum sg_status sg_result_add_value(struct sg_result *r, const char *name, const 
     struct sg_quantity *q = new_quantity(r, name, unit, note);
     if (q == NULL)
         return SG_ENOMEM;
-    q->determined = isfinite(value);
-    q->value = value;
+    sg_quantity_set_value(q, value);
     return SG_OK;
 }
 
 enum sg_status sg_result_add_undetermined(struct sg_result *r, const char *name, const char *unit,
                                           const char *note)
 {
-    struct sg_quantity *q = new_quantity(r, name, unit, note);
-    if (q == NULL)
-        return SG_ENOMEM;
-    q->determined = false;
-    return SG_OK;
+    return new_quantity(r, name, unit, note) != NULL ? SG_OK : SG_ENOMEM;
 }
 
 enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const char *text, const char *note)
@@ -141,9 +150,7 @@ enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const c
     struct sg_quantity *q = new_quantity(r, name, "", note);
     if (q == NULL)
         return SG_ENOMEM;
-    q->is_text = true;
-    q->determined = text != NULL && text[0] != '\0';
-    copy_text(q->text, sizeof q->text, text);
+    sg_quantity_set_text(q, text);
     return SG_OK;
 }
 

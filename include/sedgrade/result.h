@@ -46,20 +46,23 @@ struct sg_point {
 };
 
 #define SG_QNAME_MAX 40
+#define SG_QUNIT_MAX 16
 #define SG_QTEXT_MAX 256 /* room for qc_flags, every QC flag name joined by '|' */
 #define SG_QNOTE_MAX 240
 
 /* One summary quantity (a row of <id>.summary.csv). */
 struct sg_quantity {
     char name[SG_QNAME_MAX];  /* e.g. "d10_mm" */
-    char unit[16];            /* "mm", "%", "" */
+    char unit[SG_QUNIT_MAX];  /* "mm", "%", "" */
     bool determined;          /* false: value empty, note says why */
     bool is_text;             /* categorical value in text (e.g. usda_texture) */
+    bool has_u;               /* Monte Carlo: u, low95 and high95 are set */
     double value;
     /* Monte Carlo (has_u): standard uncertainty and 95 % coverage interval
      * (kept before the long strings: a row's fields that every reduction
-     * writes then share three cache lines instead of five) */
-    bool has_u;
+     * writes then share three cache lines instead of five; the flags side
+     * by side and the four numbers in a row, so that a new row's blanks
+     * take few stores) */
     double u, low95, high95;
     char text[SG_QTEXT_MAX];
     char note[SG_QNOTE_MAX];
@@ -138,42 +141,56 @@ enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const c
  * of sg_result_new_quantity). */
 enum sg_status sg_result_reserve_quantity(struct sg_result *r);
 
+/* A name or unit literal as the whole array sg_result_new_quantity takes,
+ * zero after the text: SG_QNAME("d10_mm"), SG_QUNIT("mm"). */
+#define SG_QNAME(s) ((const char[SG_QNAME_MAX]){s})
+#define SG_QUNIT(s) ((const char[SG_QUNIT_MAX]){s})
+
+/* Copies note into q->note, cut to fit (the rare part of
+ * sg_result_new_quantity: values-only rows have no notes). */
+void sg_quantity_copy_note(struct sg_quantity *q, const char *note);
+
 /* Appends a row that is not determined (value NaN, empty text, no u), to be
  * filled in place, for callers that add many rows from tables of names:
- * name is a whole SG_QNAME_MAX-byte array, zero after its text (e.g. an
- * entry of a static table), copied as one block without measuring it;
- * unit and note as for sg_result_add_value. NULL when out of memory.
+ * name is a whole SG_QNAME_MAX-byte array and unit a whole SG_QUNIT_MAX-byte
+ * array, zero after their text (e.g. entries of static tables), each copied
+ * as one block without measuring it; note as for sg_result_add_value
+ * (NULL or "": none). NULL when out of memory.
  * Inline: a reduction adds about 90 rows, and as many per Monte Carlo
  * draw. */
 static inline struct sg_quantity *sg_result_new_quantity(struct sg_result *r, const char name[SG_QNAME_MAX],
-                                                         const char *unit, const char *note)
+                                                         const char unit[SG_QUNIT_MAX], const char *note)
 {
     if (r->n_quantities == r->cap_quantities && sg_result_reserve_quantity(r) != SG_OK)
         return NULL;
     struct sg_quantity *q = &r->quantities[r->n_quantities++];
     memcpy(q->name, name, SG_QNAME_MAX); /* one block: no strlen */
     q->name[SG_QNAME_MAX - 1] = '\0';
-    size_t i = 0;
-    if (unit != NULL)
-        for (; i + 1 < sizeof q->unit && unit[i] != '\0'; i++)
-            q->unit[i] = unit[i];
-    q->unit[i] = '\0';
-    if (note != NULL && note[0] != '\0') {
-        size_t n = strlen(note);
-        if (n > sizeof q->note - 1)
-            n = sizeof q->note - 1;
-        memcpy(q->note, note, n);
-        q->note[n] = '\0';
-    } else {
-        q->note[0] = '\0';
-    }
-    q->text[0] = '\0';
+    memcpy(q->unit, unit, SG_QUNIT_MAX);
+    q->unit[SG_QUNIT_MAX - 1] = '\0';
     q->determined = false;
     q->is_text = false;
     q->has_u = false;
     q->value = q->u = q->low95 = q->high95 = (double)NAN;
+    q->text[0] = '\0';
+    if (note != NULL && note[0] != '\0')
+        sg_quantity_copy_note(q, note);
+    else
+        q->note[0] = '\0';
     return q;
 }
+
+/* Fills a row made by sg_result_new_quantity: the number v (determined
+ * when finite), as sg_result_add_value does. */
+static inline void sg_quantity_set_value(struct sg_quantity *q, double v)
+{
+    q->determined = isfinite(v);
+    q->value = v;
+}
+
+/* Fills a row made by sg_result_new_quantity: the categorical text
+ * (determined when not NULL nor empty), as sg_result_add_text does. */
+void sg_quantity_set_text(struct sg_quantity *q, const char *text);
 
 /* The quantity called name, or NULL. */
 struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *name);
