@@ -263,6 +263,9 @@ struct ctx {
     double p[N_BOUNDS];
     enum sg_status pst[N_BOUNDS];
     char why[N_BOUNDS][MSG_MAX];
+    /* the percent finer where determined, else NaN; pv[B_ZERO] = 0 (a
+     * fraction is then one subtraction, NaN when either bound is not) */
+    double pv[N_BOUNDS + 1];
 };
 
 /* A value read off the curve: determined, or the reason why not (empty
@@ -283,7 +286,7 @@ static void keep(struct ctx *x, enum sg_key k, size_t row)
 /* Keeps key k: the curve's percent finer at bound b, NaN where it gives none. */
 static void keep_reading(struct ctx *x, enum sg_key k, enum bound b)
 {
-    x->res->keys[k] = x->pst[b] == SG_OK ? x->p[b] : (double)NAN;
+    x->res->keys[k] = x->pv[b];
 }
 
 static enum sg_status nomem(struct ctx *x)
@@ -347,7 +350,9 @@ static void copy_msg(char *dst, const char *src)
 static enum sg_status read_bounds(struct ctx *x)
 {
     sg_curve_percent_at_sorted(x->curve, bound_mm, bound_log10, N_BOUNDS, x->p, x->pst);
+    x->pv[B_ZERO] = 0.0;
     for (size_t b = 0; b < N_BOUNDS; b++) {
+        x->pv[b] = x->pst[b] == SG_OK ? x->p[b] : (double)NAN;
         if (x->pst[b] == SG_OK)
             continue;
         if (x->pst[b] == SG_ENOMEM)
@@ -489,18 +494,13 @@ static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MA
                                       const struct reading *basis, const char *what)
 {
     if (x->quiet) { /* the same rows without the notes' reasons: the Monte Carlo draws' path */
-        const bool ok = (upper == B_ZERO || x->pst[upper] == SG_OK) && (lower == B_ZERO || x->pst[lower] == SG_OK);
-        double v = (double)NAN;
-        if (ok) {
-            v = (upper == B_ZERO ? 0.0 : x->p[upper]) - (lower == B_ZERO ? 0.0 : x->p[lower]);
-            if (basis != NULL)
-                v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
-        }
-        struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_PCT, "");
+        double v = x->pv[upper] - x->pv[lower]; /* NaN unless both are determined */
+        if (basis != NULL)
+            v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
+        struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_PCT, NULL);
         if (q == NULL)
             return nomem(x);
-        q->determined = ok && isfinite(v);
-        q->value = q->determined ? v : (double)NAN;
+        sg_quantity_set_value(q, isfinite(v) ? v : (double)NAN);
         return SG_OK;
     }
     const struct reading r = fraction(x, lower, upper);
