@@ -770,7 +770,8 @@ static bool is_sed(const struct sg_point *p)
 
 static double loglinear(double d, double d0, double p0, double d1, double p1)
 {
-    return p0 + (p1 - p0) * (log10(d) - log10(d0)) / (log10(d1) - log10(d0));
+    const double l0 = log10(d0); /* once: log10 is not free */
+    return p0 + (p1 - p0) * (log10(d) - l0) / (log10(d1) - l0);
 }
 
 /* The sedimentation points around a size a, in their (size, line) order:
@@ -818,15 +819,11 @@ static enum sg_status add_junction_gap(struct ctx *x)
     static const char name[SG_QNAME_MAX] = "junction_gap_pct";
     double a_mm = INFINITY, p_sieve = NAN;
     bool a_from_sieve = false;
-    size_t n_sed = 0;
+    /* each point tested for use once: sieves here, sedimentation below */
     for (size_t i = 0; i < res->n_points; i++) {
         const struct sg_point *p = &res->points[i];
-        if (!usable(p))
+        if (is_sed(p) || !usable(p))
             continue;
-        if (is_sed(p)) {
-            n_sed++;
-            continue;
-        }
         const bool is_sieve = p->source == SG_SOURCE_SIEVE;
         /* the finest aperture; at equal apertures the sieve set's value (D6913) */
         if (p->diameter_mm < a_mm || (p->diameter_mm == a_mm && is_sieve && !a_from_sieve)) {
@@ -837,18 +834,18 @@ static enum sg_status add_junction_gap(struct ctx *x)
     }
     if (!isfinite(a_mm))
         return add_undet(x, name, UNIT_PCT, "not determined: no sieve points");
-    if (n_sed == 0)
-        return add_undet(x, name, UNIT_PCT, "not determined: no sedimentation points");
 
     struct around ar;
     memset(&ar, 0, sizeof ar);
     for (size_t i = 0; i < res->n_points; i++) {
         const struct sg_point *p = &res->points[i];
-        if (usable(p) && is_sed(p)) {
+        if (is_sed(p) && usable(p)) {
             const struct sed_point s = {p->diameter_mm, p->percent_finer, p->line};
             around_add(&ar, a_mm, &s);
         }
     }
+    if (!ar.has_lo1 && !ar.has_hi1) /* the first point sets one of them */
+        return add_undet(x, name, UNIT_PCT, "not determined: no sedimentation points");
     double p_sed = NAN;
     char how[160];
     how[0] = '\0';
