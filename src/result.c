@@ -198,41 +198,20 @@ double sg_result_key(const struct sg_result *r, enum sg_key k)
     return sg_curve_percent_at_log10(&r->curve, src[k].d_mm, src[k].log10_d, &p, NULL) == SG_OK ? p : (double)NAN;
 }
 
-/* Every field of *p, one store each (no memset and no struct copy: a copy
- * read back right after narrower stores stalls on store forwarding). */
-static void blank_into(struct sg_point *p, enum sg_source source, unsigned line)
-{
-    p->source = source;
-    p->line = line;
-    p->diameter_mm = p->percent_finer = p->percent_specimen = NAN;
-    p->retained_g = p->cumulative_retained_g = NAN;
-    p->elapsed_min = p->temp_c = p->reading = p->blank_reading = p->corrected_reading = NAN;
-    p->depth_reading = p->effective_depth_mm = p->concentration_g_l = NAN;
-    p->solids_g = p->net_solids_g = NAN;
-    p->water_density_kg_m3 = p->viscosity_mpa_s = p->reynolds = NAN;
-    p->percent_finer_u = NAN;
-    p->flags = 0;
-    p->on_curve = false;
-}
-
 struct sg_point sg_point_blank(enum sg_source source, unsigned line)
 {
     struct sg_point p;
     memset(&p, 0, sizeof p);
-    blank_into(&p, source, line);
+    sg_point_blank_into(&p, source, line);
     return p;
 }
 
-struct sg_point *sg_result_new_point(struct sg_result *r, enum sg_source source, unsigned line)
+enum sg_status sg_result_reserve_point(struct sg_result *r)
 {
     void *items = r->points;
     enum sg_status st = grow(&items, r->n_points, &r->cap_points, sizeof *r->points);
     r->points = items;
-    if (st != SG_OK)
-        return NULL;
-    struct sg_point *p = &r->points[r->n_points++];
-    blank_into(p, source, line);
-    return p;
+    return st;
 }
 
 enum sg_severity sg_result_worst(const struct sg_result *r)

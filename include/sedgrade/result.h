@@ -209,10 +209,41 @@ double sg_result_key(const struct sg_result *r, enum sg_key k);
 /* A point initialised with NaN in every numeric field that may not apply. */
 struct sg_point sg_point_blank(enum sg_source source, unsigned line);
 
+/* Makes room for one more point: SG_OK or SG_ENOMEM (the rare path of
+ * sg_result_new_point). */
+enum sg_status sg_result_reserve_point(struct sg_result *r);
+
+/* Sets every field of *p as sg_point_blank(source, line) has it, one store
+ * each (no memset and no struct copy: a copy read back right after
+ * narrower stores stalls on store forwarding). */
+static inline void sg_point_blank_into(struct sg_point *p, enum sg_source source, unsigned line)
+{
+    p->source = source;
+    p->line = line;
+    p->diameter_mm = p->percent_finer = p->percent_specimen = NAN;
+    p->retained_g = p->cumulative_retained_g = NAN;
+    p->elapsed_min = p->temp_c = p->reading = p->blank_reading = p->corrected_reading = NAN;
+    p->depth_reading = p->effective_depth_mm = p->concentration_g_l = NAN;
+    p->solids_g = p->net_solids_g = NAN;
+    p->water_density_kg_m3 = p->viscosity_mpa_s = p->reynolds = NAN;
+    p->percent_finer_u = NAN;
+    p->flags = 0;
+    p->on_curve = false;
+}
+
 /* Appends sg_point_blank(source, line) and returns it, to be filled in
  * place (no copy of the whole point); NULL when out of memory. The pointer
- * is valid until the next point is added. */
-struct sg_point *sg_result_new_point(struct sg_result *r, enum sg_source source, unsigned line);
+ * is valid until the next point is added. Inline, as
+ * sg_result_new_quantity: a reduction adds a point per sieve and reading,
+ * and as many per Monte Carlo draw. */
+static inline struct sg_point *sg_result_new_point(struct sg_result *r, enum sg_source source, unsigned line)
+{
+    if (r->n_points == r->cap_points && sg_result_reserve_point(r) != SG_OK)
+        return NULL;
+    struct sg_point *p = &r->points[r->n_points++];
+    sg_point_blank_into(p, source, line);
+    return p;
+}
 
 /* Worst severity among the flags (SG_SEVERITY_INFO when none). */
 enum sg_severity sg_result_worst(const struct sg_result *r);
