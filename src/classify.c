@@ -488,21 +488,10 @@ static struct reading fraction(const struct ctx *x, enum bound lower, enum bound
     return r;
 }
 
-/* Adds a fraction of the whole sample (or, with basis > 0, of the part
- * whose percent of the sample is basis). what describes it for the note. */
-static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
-                                      const struct reading *basis, const char *what)
+/* add_fraction_on with the note, and the reason when not determined. */
+static enum sg_status add_fraction_noted(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower,
+                                         enum bound upper, const struct reading *basis, const char *what)
 {
-    if (x->quiet) { /* the same rows without the notes' reasons: the Monte Carlo draws' path */
-        double v = x->pv[upper] - x->pv[lower]; /* NaN unless both are determined */
-        if (basis != NULL)
-            v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
-        struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_PCT, NULL);
-        if (q == NULL)
-            return nomem(x);
-        sg_quantity_set_value(q, isfinite(v) ? v : (double)NAN);
-        return SG_OK;
-    }
     const struct reading r = fraction(x, lower, upper);
     if (!r.ok)
         return add_undet(x, name, UNIT_PCT, "not determined: %s", r.why);
@@ -516,13 +505,33 @@ static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MA
                              basis->value);
         v = 100.0 * r.value / basis->value;
     }
-    if (v < NEGATIVE_FRACTION_PCT && !x->quiet) {
+    if (v < NEGATIVE_FRACTION_PCT) {
         char note[SG_QNOTE_MAX];
         join(note, sizeof note, what, "; negative: the curve rises with falling size in this range (see the QC flags)",
              (const char *)NULL);
         return add_value(x, name, UNIT_PCT, v, note);
     }
     return add_value(x, name, UNIT_PCT, v, what);
+}
+
+/* Adds a fraction of the whole sample (or, with basis > 0, of the part
+ * whose percent of the sample is basis). what describes it for the note.
+ * Quiet: the same rows without the notes' reasons, the Monte Carlo draws'
+ * path; inline, so that the 38 fraction rows a draw adds are written
+ * within the loops over the tables, without a call each. */
+static inline enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower,
+                                             enum bound upper, const struct reading *basis, const char *what)
+{
+    if (!x->quiet)
+        return add_fraction_noted(x, name, lower, upper, basis, what);
+    double v = x->pv[upper] - x->pv[lower]; /* NaN unless both are determined */
+    if (basis != NULL)
+        v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
+    struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_PCT, NULL);
+    if (q == NULL)
+        return nomem(x);
+    sg_quantity_set_value(q, isfinite(v) ? v : (double)NAN);
+    return SG_OK;
 }
 
 static enum sg_status add_fraction(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
