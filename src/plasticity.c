@@ -193,7 +193,9 @@ static enum sg_status value(struct ctx *x, const char name[SG_QNAME_MAX], const 
     return SG_OK;
 }
 
-static enum sg_status undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX],
+/* Inline: without the limits (most records, and every Monte Carlo draw of
+ * them) the summary is seven such rows. */
+static inline enum sg_status undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX],
                             const char *note)
 {
     return sg_result_new_quantity(x->res, name, unit, x->no_notes ? "" : note) != NULL ? SG_OK : nomem(x);
