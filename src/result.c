@@ -116,16 +116,22 @@ void sg_quantity_set_text(struct sg_quantity *q, const char *text)
     copy_text(q->text, sizeof q->text, text);
 }
 
+/* Copies src (NULL: empty) into dst of size n, zero-filled beforehand, cut
+ * at n - 1 bytes. */
+static void pad_into(char *dst, size_t n, const char *src)
+{
+    if (src != NULL)
+        memcpy(dst, src, strnlen(src, n - 1));
+}
+
 /* A row named by a string: the name and unit zero-padded first, so that
  * equal names are equal arrays (a cheap first test in mc.c). */
 static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, const char *unit,
                                         const char *note)
 {
-    char padded[SG_QNAME_MAX], padded_unit[SG_QUNIT_MAX] = "";
-    strncpy(padded, name, sizeof padded); /* pads with zeros: one pass, no memset first */
-    padded[sizeof padded - 1] = '\0';
-    for (size_t i = 0; unit != NULL && i + 1 < sizeof padded_unit && unit[i] != '\0'; i++) /* short: no call */
-        padded_unit[i] = unit[i];
+    char padded[SG_QNAME_MAX] = "", padded_unit[SG_QUNIT_MAX] = "";
+    pad_into(padded, sizeof padded, name);
+    pad_into(padded_unit, sizeof padded_unit, unit);
     return sg_result_new_quantity(r, padded, padded_unit, note);
 }
 
