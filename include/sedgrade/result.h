@@ -109,7 +109,8 @@ struct sg_result {
     char calibration_used[256];  /* "instrument@date;..." or "inline" */
     /* keys[k] as sg_result_key gives it, kept by sg_classify_summarise;
      * has_keys false (results built row by row, or before the summary):
-     * sg_result_key looks them up */
+     * sg_result_key looks them up. A caller that changes those rows or the
+     * curve after the summary sets has_keys false. */
     bool has_keys;
     double keys[SG_N_KEYS];
 };
