@@ -263,6 +263,9 @@ struct ctx {
     double p[N_BOUNDS];
     enum sg_status pst[N_BOUNDS];
     char why[N_BOUNDS][MSG_MAX];
+    /* the percent finer where determined, else NaN; pv[B_ZERO] = 0 (a
+     * fraction is then one subtraction, NaN when either bound is not) */
+    double pv[N_BOUNDS + 1];
 };
 
 /* A value read off the curve: determined, or the reason why not (empty
@@ -273,34 +276,46 @@ struct reading {
     const char *why;
 };
 
+/* Keeps key k of the result (result.h): the number of the row at index
+ * row, as a lookup by its name would give it. */
+static void keep(struct ctx *x, enum sg_key k, size_t row)
+{
+    x->res->keys[k] = sg_quantity_number(&x->res->quantities[row]);
+}
+
+/* Keeps key k: the curve's percent finer at bound b, NaN where it gives none. */
+static void keep_reading(struct ctx *x, enum sg_key k, enum bound b)
+{
+    x->res->keys[k] = x->pv[b];
+}
+
 static enum sg_status nomem(struct ctx *x)
 {
     return sg_error_set(x->err, SG_ENOMEM, 0, 0, "out of memory adding summary quantities");
 }
 
-/* Names are whole SG_QNAME_MAX-byte arrays, zero after the text (table
- * entries, or QN("...") for a literal), copied by the result as one block. */
-#define QN(s) ((const char[SG_QNAME_MAX]){s})
+/* Names and units are whole arrays, zero after the text (table entries,
+ * or SG_QNAME("...") for a literal), copied by the result as one block. */
+static const char UNIT_MM[SG_QUNIT_MAX] = "mm", UNIT_PCT[SG_QUNIT_MAX] = "%", UNIT_NONE[SG_QUNIT_MAX] = "";
 
-static enum sg_status add_value(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, double v,
+static enum sg_status add_value(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], double v,
                                 const char *note)
 {
     struct sg_quantity *q = sg_result_new_quantity(x->res, name, unit, x->quiet ? "" : note);
     if (q == NULL)
         return nomem(x);
-    q->determined = isfinite(v);
-    q->value = v;
+    sg_quantity_set_value(q, v);
     return SG_OK;
 }
 
-static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, const char *fmt,
+static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], const char *fmt,
                                 ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 4, 5)))
 #endif
     ;
 
-static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char *unit, const char *fmt,
+static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], const char *fmt,
                                 ...)
 {
     char note[SG_QNOTE_MAX];
@@ -314,9 +329,13 @@ static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], co
     return sg_result_new_quantity(x->res, name, unit, note) != NULL ? SG_OK : nomem(x);
 }
 
-static enum sg_status add_text(struct ctx *x, const char *name, const char *text, const char *note)
+static enum sg_status add_text(struct ctx *x, const char name[SG_QNAME_MAX], const char *text, const char *note)
 {
-    return sg_result_add_text(x->res, name, text, x->quiet ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_NONE, x->quiet ? "" : note);
+    if (q == NULL)
+        return nomem(x);
+    sg_quantity_set_text(q, text);
+    return SG_OK;
 }
 
 /* Copies an error message (both buffers MSG_MAX bytes). */
@@ -331,7 +350,9 @@ static void copy_msg(char *dst, const char *src)
 static enum sg_status read_bounds(struct ctx *x)
 {
     sg_curve_percent_at_sorted(x->curve, bound_mm, bound_log10, N_BOUNDS, x->p, x->pst);
+    x->pv[B_ZERO] = 0.0;
     for (size_t b = 0; b < N_BOUNDS; b++) {
+        x->pv[b] = x->pst[b] == SG_OK ? x->p[b] : (double)NAN;
         if (x->pst[b] == SG_OK)
             continue;
         if (x->pst[b] == SG_ENOMEM)
@@ -441,7 +462,7 @@ static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_M
     if (out != NULL)
         *out = r;
     if (!r.ok)
-        return add_undet(x, name, "mm", "D%g not determined: %s", p, r.why);
+        return add_undet(x, name, UNIT_MM, "D%g not determined: %s", p, r.why);
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
     if (!x->quiet) {
@@ -452,7 +473,7 @@ static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_M
             fmt_into(note, sizeof note, "size at which %g %% is finer (%s interpolation on log10 D)", p,
                      x->interp_word);
     }
-    return add_value(x, name, "mm", r.value, note);
+    return add_value(x, name, UNIT_MM, r.value, note);
 }
 
 /* Percent finer between two bounds (lower B_ZERO: finer than upper); the
@@ -467,46 +488,50 @@ static struct reading fraction(const struct ctx *x, enum bound lower, enum bound
     return r;
 }
 
-/* Adds a fraction of the whole sample (or, with basis > 0, of the part
- * whose percent of the sample is basis). what describes it for the note. */
-static enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
-                                      const struct reading *basis, const char *what)
+/* add_fraction_on with the note, and the reason when not determined. */
+static enum sg_status add_fraction_noted(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower,
+                                         enum bound upper, const struct reading *basis, const char *what)
 {
-    if (x->quiet) { /* the same rows without the notes' reasons: the Monte Carlo draws' path */
-        const bool ok = (upper == B_ZERO || x->pst[upper] == SG_OK) && (lower == B_ZERO || x->pst[lower] == SG_OK);
-        double v = (double)NAN;
-        if (ok) {
-            v = (upper == B_ZERO ? 0.0 : x->p[upper]) - (lower == B_ZERO ? 0.0 : x->p[lower]);
-            if (basis != NULL)
-                v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
-        }
-        struct sg_quantity *q = sg_result_new_quantity(x->res, name, "%", "");
-        if (q == NULL)
-            return nomem(x);
-        q->determined = ok && isfinite(v);
-        q->value = q->determined ? v : (double)NAN;
-        return SG_OK;
-    }
     const struct reading r = fraction(x, lower, upper);
     if (!r.ok)
-        return add_undet(x, name, "%", "not determined: %s", r.why);
+        return add_undet(x, name, UNIT_PCT, "not determined: %s", r.why);
     double v = r.value;
     if (basis != NULL) {
         if (!basis->ok)
-            return add_undet(x, name, "%", "not determined: the basis (percent finer than 2 mm) is not: %s",
+            return add_undet(x, name, UNIT_PCT, "not determined: the basis (percent finer than 2 mm) is not: %s",
                              basis->why);
         if (!(basis->value > 0.0))
-            return add_undet(x, name, "%", "not determined: no material finer than 2 mm (%g %%)",
+            return add_undet(x, name, UNIT_PCT, "not determined: no material finer than 2 mm (%g %%)",
                              basis->value);
         v = 100.0 * r.value / basis->value;
     }
-    if (v < NEGATIVE_FRACTION_PCT && !x->quiet) {
+    if (v < NEGATIVE_FRACTION_PCT) {
         char note[SG_QNOTE_MAX];
         join(note, sizeof note, what, "; negative: the curve rises with falling size in this range (see the QC flags)",
              (const char *)NULL);
-        return add_value(x, name, "%", v, note);
+        return add_value(x, name, UNIT_PCT, v, note);
     }
-    return add_value(x, name, "%", v, what);
+    return add_value(x, name, UNIT_PCT, v, what);
+}
+
+/* Adds a fraction of the whole sample (or, with basis > 0, of the part
+ * whose percent of the sample is basis). what describes it for the note.
+ * Quiet: the same rows without the notes' reasons, the Monte Carlo draws'
+ * path; inline, so that the 38 fraction rows a draw adds are written
+ * within the loops over the tables, without a call each. */
+static inline enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower,
+                                             enum bound upper, const struct reading *basis, const char *what)
+{
+    if (!x->quiet)
+        return add_fraction_noted(x, name, lower, upper, basis, what);
+    double v = x->pv[upper] - x->pv[lower]; /* NaN unless both are determined */
+    if (basis != NULL)
+        v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
+    struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_PCT, NULL);
+    if (q == NULL)
+        return nomem(x);
+    sg_quantity_set_value(q, isfinite(v) ? v : (double)NAN);
+    return SG_OK;
 }
 
 static enum sg_status add_fraction(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
@@ -532,17 +557,17 @@ static enum sg_status add_cu_cc(struct ctx *x, const struct reading *d10, const 
     }
     enum sg_status st;
     if (!d10->ok || !d60->ok)
-        st = add_undet(x, QN("cu"), "", "not determined: %s not determined (Cu = D60 / D10)", missing);
+        st = add_undet(x, SG_QNAME("cu"), UNIT_NONE, "not determined: %s not determined (Cu = D60 / D10)", missing);
     else {
         *cu = d60->value / d10->value;
-        st = add_value(x, QN("cu"), "", *cu, "coefficient of uniformity D60 / D10");
+        st = add_value(x, SG_QNAME("cu"), UNIT_NONE, *cu, "coefficient of uniformity D60 / D10");
     }
     if (st != SG_OK)
         return st;
     if (!d10->ok || !d30->ok || !d60->ok)
-        return add_undet(x, QN("cc"), "", "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
+        return add_undet(x, SG_QNAME("cc"), UNIT_NONE, "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
     *cc = d30->value * d30->value / (d10->value * d60->value);
-    return add_value(x, QN("cc"), "", *cc, "coefficient of curvature D30^2 / (D10 D60)");
+    return add_value(x, SG_QNAME("cc"), UNIT_NONE, *cc, "coefficient of curvature D30^2 / (D10 D60)");
 }
 
 static enum sg_status add_usda(struct ctx *x, struct reading *p2)
@@ -565,7 +590,7 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
             all = false;
             if (!x->quiet)
                 join(why, sizeof why, bad->why, (const char *)NULL);
-            if ((st = add_undet(x, names[i], "%", "not determined: %s", bad->why)) != SG_OK)
+            if ((st = add_undet(x, names[i], UNIT_PCT, "not determined: %s", bad->why)) != SG_OK)
                 return st;
             continue;
         }
@@ -573,19 +598,19 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
             all = false;
             if (!x->quiet)
                 fmt_into(why, sizeof why, "no material finer than 2 mm (%g %%)", p2->value);
-            if ((st = add_undet(x, names[i], "%", "not determined: %s", why)) != SG_OK)
+            if ((st = add_undet(x, names[i], UNIT_PCT, "not determined: %s", why)) != SG_OK)
                 return st;
             continue;
         }
         v[i] = 100.0 * (upper[i]->value - (lower[i] ? lower[i]->value : 0.0)) / p2->value;
-        if ((st = add_value(x, names[i], "%", v[i], what[i])) != SG_OK)
+        if ((st = add_value(x, names[i], UNIT_PCT, v[i], what[i])) != SG_OK)
             return st;
     }
     if (!all)
-        return add_undet(x, QN("usda_texture"), "", "not determined: %s", why);
+        return add_undet(x, SG_QNAME("usda_texture"), UNIT_NONE, "not determined: %s", why);
     const char *cls = sg_classify_usda_texture(v[0], v[1], v[2]);
     if (cls == NULL)
-        return add_undet(x, QN("usda_texture"), "",
+        return add_undet(x, SG_QNAME("usda_texture"), UNIT_NONE,
                          "not determined: a separate is negative (sand %.1f, silt %.1f, clay %.1f %%; the curve "
                          "rises with falling size, see the QC flags)",
                          v[0], v[1], v[2]);
@@ -598,7 +623,7 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
                  100.0 - p2->value);
     else if (!x->quiet)
         join(note, sizeof note, "USDA texture triangle on the fraction finer than 2 mm", (const char *)NULL);
-    return add_text(x, "usda_texture", cls, note);
+    return add_text(x, SG_QNAME("usda_texture"), cls, note);
 }
 
 static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options *opt)
@@ -618,7 +643,7 @@ static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options
             continue;
         enum sg_status st;
         if (p <= 0.0 || p > 100.0)
-            st = add_undet(x, name, "mm", "not determined: %g %% is not a percentage in (0, 100]", p);
+            st = add_undet(x, name, UNIT_MM, "not determined: %g %% is not a percentage in (0, 100]", p);
         else
             st = add_dx(x, p, name, NULL, NULL, why);
         if (st != SG_OK)
@@ -634,15 +659,15 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     enum sg_status st;
     const struct reading *bad = !p75.ok ? &p75 : !p475.ok ? &p475 : !p0075.ok ? &p0075 : NULL;
     if (bad != NULL) {
-        if ((st = add_undet(x, QN("uscs_grading"), "", "not determined (needs P at 75, 4.75, 0.075 mm): %s",
+        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE, "not determined (needs P at 75, 4.75, 0.075 mm): %s",
                             bad->why)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "not determined (needs P at 75, 4.75, 0.075 mm): %s", bad->why);
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined (needs P at 75, 4.75, 0.075 mm): %s", bad->why);
     }
     if (!(p75.value > 0.0)) {
-        if ((st = add_undet(x, QN("uscs_grading"), "", "not determined: no material finer than 75 mm")) != SG_OK)
+        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE, "not determined: no material finer than 75 mm")) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "not determined: no material finer than 75 mm");
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined: no material finer than 75 mm");
     }
     const double fines = 100.0 * p0075.value / p75.value;
     const double gravel = 100.0 * (p75.value - p475.value) / p75.value;
@@ -663,9 +688,9 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      "ASTM D2487 fine-grained soil (fines %.1f %% >= 50 %%): grading terms apply to "
                      "coarse-grained soils",
                      fines);
-        if ((st = add_text(x, "uscs_grading", "not applicable, fine-grained", note)) != SG_OK)
+        if ((st = add_text(x, SG_QNAME("uscs_grading"), "not applicable, fine-grained", note)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "",
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE,
                          "fine-grained soil (fines %.1f %% >= 50 %%): ML, CL, MH, CH, OL or OH needs the "
                          "Atterberg limits (and organic content)%s",
                          fines, x->limits_given);
@@ -676,30 +701,30 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      "ASTM D2487: with fines over 12 %% (%s) the soil is named by the plasticity of its "
                      "fines, not by its grading",
                      basis);
-        if ((st = add_text(x, "uscs_grading", "not applicable, fines over 12 %", note)) != SG_OK)
+        if ((st = add_text(x, SG_QNAME("uscs_grading"), "not applicable, fines over 12 %", note)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "%s with fines over 12 %% (%s): %s needs the Atterberg limits%s",
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "%s with fines over 12 %% (%s): %s needs the Atterberg limits%s",
                          kind, basis, is_gravel ? "GM, GC or GC-GM" : "SM, SC or SC-SM", x->limits_given);
     }
     if (!isfinite(cu) || !isfinite(cc)) {
-        if ((st = add_undet(x, QN("uscs_grading"), "",
+        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE,
                             "not determined: Cu and Cc are needed (D10, D30 and D60; %s)", basis)) != SG_OK)
             return st;
-        return add_undet(x, QN("uscs_group"), "", "not determined: Cu and Cc are needed (%s)", basis);
+        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined: Cu and Cc are needed (%s)", basis);
     }
     const bool well = sg_classify_uscs_well_graded(is_gravel, cu, cc);
     if (!x->quiet)
         fmt_into(note, sizeof note, "ASTM D2487 %s (%s): %s needs Cu >= %g and 1 <= Cc <= 3; Cu %.2f, Cc %.2f",
                  kind, basis, is_gravel ? "GW" : "SW", is_gravel ? USCS_GW_CU_MIN : USCS_SW_CU_MIN, cu, cc);
-    if ((st = add_text(x, "uscs_grading", well ? "well graded" : "poorly graded", note)) != SG_OK)
+    if ((st = add_text(x, SG_QNAME("uscs_grading"), well ? "well graded" : "poorly graded", note)) != SG_OK)
         return st;
     const char *sym = is_gravel ? (well ? "GW" : "GP") : (well ? "SW" : "SP");
     if (fines < USCS_CLEAN_MAX_PCT) {
         if (!x->quiet)
             fmt_into(note, sizeof note, "ASTM D2487 coarse-grained, fines %.1f %% < 5 %% (%s)", fines, basis);
-        return add_text(x, "uscs_group", sym, note);
+        return add_text(x, SG_QNAME("uscs_group"), sym, note);
     }
-    return add_undet(x, QN("uscs_group"), "",
+    return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE,
                      "dual symbol %s-%cM or %s-%cC (fines %.1f %%, 5-12 %%): the second part needs the "
                      "Atterberg limits of the fines%s",
                      sym, is_gravel ? 'G' : 'S', sym, is_gravel ? 'G' : 'S', fines, x->limits_given);
@@ -708,10 +733,10 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
 static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
 {
     if (!isfinite(cu) || !isfinite(cc))
-        return add_undet(x, QN("iso_grading"), "", "not determined: Cu and Cc are needed (D10, D30 and D60)");
+        return add_undet(x, SG_QNAME("iso_grading"), UNIT_NONE, "not determined: Cu and Cc are needed (D10, D30 and D60)");
     const char *term = sg_classify_iso_grading(cu, cc);
     if (term == NULL)
-        return add_undet(x, QN("iso_grading"), "",
+        return add_undet(x, SG_QNAME("iso_grading"), UNIT_NONE,
                          "no ISO 14688-2 term fits Cu %.2f, Cc %.2f (multi-graded needs Cu > 15 and 1 < Cc < 3; "
                          "gap-graded Cc < 0.5)",
                          cu, cc);
@@ -722,7 +747,7 @@ static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
                  "ISO 14688-2 from Cu %.2f and Cc %.2f (limits from memory: multi Cu > 15 and 1 < Cc < 3, "
                  "medium 6-15, even < 6, gap Cc < 0.5)",
                  cu, cc);
-    return add_text(x, "iso_grading", term, note);
+    return add_text(x, SG_QNAME("iso_grading"), term, note);
 }
 
 /* ---- junction gap ------------------------------------------------------ */
@@ -754,7 +779,8 @@ static bool is_sed(const struct sg_point *p)
 
 static double loglinear(double d, double d0, double p0, double d1, double p1)
 {
-    return p0 + (p1 - p0) * (log10(d) - log10(d0)) / (log10(d1) - log10(d0));
+    const double l0 = log10(d0); /* once: log10 is not free */
+    return p0 + (p1 - p0) * (log10(d) - l0) / (log10(d1) - l0);
 }
 
 /* The sedimentation points around a size a, in their (size, line) order:
@@ -802,15 +828,11 @@ static enum sg_status add_junction_gap(struct ctx *x)
     static const char name[SG_QNAME_MAX] = "junction_gap_pct";
     double a_mm = INFINITY, p_sieve = NAN;
     bool a_from_sieve = false;
-    size_t n_sed = 0;
+    /* each point tested for use once: sieves here, sedimentation below */
     for (size_t i = 0; i < res->n_points; i++) {
         const struct sg_point *p = &res->points[i];
-        if (!usable(p))
+        if (is_sed(p) || !usable(p))
             continue;
-        if (is_sed(p)) {
-            n_sed++;
-            continue;
-        }
         const bool is_sieve = p->source == SG_SOURCE_SIEVE;
         /* the finest aperture; at equal apertures the sieve set's value (D6913) */
         if (p->diameter_mm < a_mm || (p->diameter_mm == a_mm && is_sieve && !a_from_sieve)) {
@@ -820,19 +842,19 @@ static enum sg_status add_junction_gap(struct ctx *x)
         }
     }
     if (!isfinite(a_mm))
-        return add_undet(x, name, "%", "not determined: no sieve points");
-    if (n_sed == 0)
-        return add_undet(x, name, "%", "not determined: no sedimentation points");
+        return add_undet(x, name, UNIT_PCT, "not determined: no sieve points");
 
     struct around ar;
     memset(&ar, 0, sizeof ar);
     for (size_t i = 0; i < res->n_points; i++) {
         const struct sg_point *p = &res->points[i];
-        if (usable(p) && is_sed(p)) {
+        if (is_sed(p) && usable(p)) {
             const struct sed_point s = {p->diameter_mm, p->percent_finer, p->line};
             around_add(&ar, a_mm, &s);
         }
     }
+    if (!ar.has_lo1 && !ar.has_hi1) /* the first point sets one of them */
+        return add_undet(x, name, UNIT_PCT, "not determined: no sedimentation points");
     double p_sed = NAN;
     char how[160];
     how[0] = '\0';
@@ -850,7 +872,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
         const bool all_finer = !ar.has_hi1; /* the two coarsest; else the two finest */
         const struct sed_point s0 = all_finer ? ar.lo1 : ar.hi1, s1 = all_finer ? ar.lo2 : ar.hi2;
         if (!(all_finer ? ar.has_lo2 : ar.has_hi2))
-            return add_undet(x, name, "%",
+            return add_undet(x, name, UNIT_PCT,
                              "not determined: sedimentation points at one size only (%g mm), none at the finest "
                              "sieve %g mm",
                              s0.d_mm, a_mm);
@@ -866,7 +888,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
     if (!x->quiet)
         fmt_into(note, sizeof note, "%s %g mm passing %.2f %% minus sedimentation %.2f %% at that size, %s",
                  a_from_sieve ? "sieve" : "fine sieve", a_mm, p_sieve, p_sed, how);
-    return add_value(x, name, "%", p_sieve - p_sed, note);
+    return add_value(x, name, UNIT_PCT, p_sieve - p_sed, note);
 }
 
 /* ---- entry point ------------------------------------------------------- */
@@ -890,6 +912,7 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
                          ? "; the record gives them: the group symbol with them is uscs_symbol"
                          : "";
     enum sg_status st;
+    res->has_keys = false; /* until every key is kept */
 
     static const struct {
         double p;
@@ -899,23 +922,33 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
               {50.0, "d50_mm", "50"}, {60.0, "d60_mm", "60"}, {85.0, "d85_mm", "85"}};
     struct reading d[6];
     char d_why[6][MSG_MAX];
+    const size_t d10_row = res->n_quantities; /* then d15_mm, ..., one row each */
     for (size_t i = 0; i < sizeof dp / sizeof dp[0]; i++)
         if ((st = add_dx(&x, dp[i].p, dp[i].name, dp[i].shown, &d[i], d_why[i])) != SG_OK)
             return st;
+    keep(&x, SG_KEY_D10_MM, d10_row);
+    keep(&x, SG_KEY_D15_MM, d10_row + 1);
     double cu, cc;
     if ((st = add_cu_cc(&x, &d[0], &d[2], &d[4], &cu, &cc)) != SG_OK)
         return st;
+    keep(&x, SG_KEY_CU, res->n_quantities - 2);
+    keep(&x, SG_KEY_CC, res->n_quantities - 1);
 
     if ((st = read_bounds(&x)) != SG_OK)
         return st;
+    keep_reading(&x, SG_KEY_P_75_MM_PCT, B_75);
+    keep_reading(&x, SG_KEY_P_4_75_MM_PCT, B_4_75);
+    keep_reading(&x, SG_KEY_P_0_075_MM_PCT, B_0_075);
     struct reading p2;
-    if ((st = add_fraction(&x, QN("clay_pct"), B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
-        (st = add_fraction(&x, QN("silt_pct"), B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
-        (st = add_fraction(&x, QN("sand_pct"), B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
-        (st = add_fraction(&x, QN("gravel_pct"), B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
-        (st = add_fraction(&x, QN("fines_pct"), B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
+    const size_t clay_row = res->n_quantities;
+    if ((st = add_fraction(&x, SG_QNAME("clay_pct"), B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
+        (st = add_fraction(&x, SG_QNAME("silt_pct"), B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
+        (st = add_fraction(&x, SG_QNAME("sand_pct"), B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
+        (st = add_fraction(&x, SG_QNAME("gravel_pct"), B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
+        (st = add_fraction(&x, SG_QNAME("fines_pct"), B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
         (st = add_usda(&x, &p2)))
         return st;
+    keep(&x, SG_KEY_CLAY_PCT, clay_row);
 
     if ((st = add_extra_dx(&x, opt)) != SG_OK)
         return st;
@@ -964,13 +997,17 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
         {"passing_0_425_mm_pct", B_ZERO, B_0_425, false, "percent passing 0.425 mm (No. 40)"},
         {"passing_0_075_mm_pct", B_ZERO, B_0_075, false, "percent passing 0.075 mm (No. 200)"},
     };
-    for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++)
+    for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++) {
         if ((st = add_fraction_on(&x, fr[i].name, fr[i].lower, fr[i].upper, fr[i].of_fine_earth ? &p2 : NULL,
                                   fr[i].what)) != SG_OK)
             return st;
+        if (fr[i].lower == B_ZERO && fr[i].upper == B_0_02) /* finer_0_02_mm_pct */
+            keep(&x, SG_KEY_FINER_0_02_MM_PCT, res->n_quantities - 1);
+    }
 
     if ((st = add_uscs(&x, cu, cc)) != SG_OK || (st = add_iso_grading(&x, cu, cc)) != SG_OK ||
         (st = add_junction_gap(&x)) != SG_OK)
         return st;
+    res->has_keys = true;
     return SG_OK;
 }

@@ -10,16 +10,6 @@
 #include "sedgrade/curve.h"
 #include "sedgrade/reduce.h"
 
-/* ASTM D2487 sizes, mm (METHODS.md 8.2). */
-#define USCS_GRAVEL_COBBLE_MM 75.0
-#define USCS_SAND_GRAVEL_MM 4.75
-#define USCS_FINES_MM 0.075
-/* log10 of those sizes, correctly rounded (checked against 60-digit decimal
- * arithmetic; what log10() returns for them), so that no logarithm is taken
- * per reading of the curve. */
-#define LOG10_75 1.8750612633917
-#define LOG10_4_75 0.6766936096248666
-#define LOG10_0_075 (-1.1249387366083)
 /* D2487 grading limits (METHODS.md 8.2). */
 #define USCS_GW_CU_MIN 4.0
 #define USCS_SW_CU_MIN 6.0
@@ -192,42 +182,49 @@ static enum sg_status nomem(struct ctx *x)
     return sg_error_set(x->err, SG_ENOMEM, 0, 0, "out of memory adding the plasticity rows");
 }
 
-static enum sg_status value(struct ctx *x, const char *name, const char *unit, double v, const char *note)
+/* Rows named by whole arrays (SG_QNAME, SG_QUNIT), copied as blocks. */
+static enum sg_status value(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], double v,
+                            const char *note)
 {
-    return sg_result_add_value(x->res, name, unit, v, x->no_notes ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    struct sg_quantity *q = sg_result_new_quantity(x->res, name, unit, x->no_notes ? "" : note);
+    if (q == NULL)
+        return nomem(x);
+    sg_quantity_set_value(q, v);
+    return SG_OK;
 }
 
-static enum sg_status undet(struct ctx *x, const char *name, const char *unit, const char *note)
+/* Inline: without the limits (most records, and every Monte Carlo draw of
+ * them) the summary is seven such rows. */
+static inline enum sg_status undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX],
+                            const char *note)
 {
-    return sg_result_add_undetermined(x->res, name, unit, x->no_notes ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    return sg_result_new_quantity(x->res, name, unit, x->no_notes ? "" : note) != NULL ? SG_OK : nomem(x);
 }
 
-static enum sg_status text(struct ctx *x, const char *name, const char *t, const char *note)
+static enum sg_status text(struct ctx *x, const char name[SG_QNAME_MAX], const char *t, const char *note)
 {
-    return sg_result_add_text(x->res, name, t, x->no_notes ? "" : note) == SG_OK ? SG_OK : nomem(x);
+    struct sg_quantity *q = sg_result_new_quantity(x->res, name, SG_QUNIT(""), x->no_notes ? "" : note);
+    if (q == NULL)
+        return nomem(x);
+    sg_quantity_set_text(q, t);
+    return SG_OK;
 }
 
 #define FLAG(x, name, sev, ...)                                                                    \
     ((x)->quiet ? SG_OK                                                                            \
                 : (sg_result_add_flag((x)->res, (name), (sev), 0, __VA_ARGS__) == SG_OK ? SG_OK : nomem(x)))
 
-/* A determined numeric quantity of res, or NaN. */
-static double quantity(const struct sg_result *res, const char *name)
+/* D2487 fractions of the material finer than 75 mm, from the curve's
+ * percent finer at 75, 4.75 and 0.075 mm (METHODS.md 8.2). */
+static void uscs_fractions(const struct sg_result *res, double *gravel, double *sand, double *fines)
 {
-    const struct sg_quantity *q = sg_result_quantity(res, name);
-    return (q != NULL && q->determined && !q->is_text) ? q->value : (double)NAN;
-}
-
-/* D2487 fractions of the material finer than 75 mm, from the curve. */
-static void uscs_fractions(const struct sg_curve *c, double *gravel, double *sand, double *fines)
-{
-    double p75, p475, p0075;
+    const double p75 = sg_result_key(res, SG_KEY_P_75_MM_PCT), p0075 = sg_result_key(res, SG_KEY_P_0_075_MM_PCT);
     *gravel = *sand = *fines = NAN;
-    if (sg_curve_percent_at_log10(c, USCS_GRAVEL_COBBLE_MM, LOG10_75, &p75, NULL) != SG_OK ||
-        sg_curve_percent_at_log10(c, USCS_FINES_MM, LOG10_0_075, &p0075, NULL) != SG_OK || !(p75 > 0.0))
+    if (isnan(p0075) || !(p75 > 0.0))
         return;
     *fines = 100.0 * p0075 / p75;
-    if (sg_curve_percent_at_log10(c, USCS_SAND_GRAVEL_MM, LOG10_4_75, &p475, NULL) != SG_OK)
+    const double p475 = sg_result_key(res, SG_KEY_P_4_75_MM_PCT);
+    if (isnan(p475))
         return;
     *gravel = 100.0 * (p75 - p475) / p75;
     *sand = 100.0 * (p475 - p0075) / p75;
@@ -247,11 +244,11 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
                        "'test,%s,<percent>')",
                        have_ll ? "liquid" : "plastic", have_ll ? "plastic_limit_pct" : "liquid_limit_pct")) != SG_OK)
             return st;
-        if ((st = undet(x, "plasticity_index_pct", "%",
+        if ((st = undet(x, SG_QNAME("plasticity_index_pct"), SG_QUNIT("%"),
                         "not determined: needs the liquid and plastic limits (test,liquid_limit_pct and "
                         "test,plastic_limit_pct, ASTM D4318 or BS 1377-2)")) != SG_OK)
             return st;
-        return undet(x, "liquidity_index", "", "not determined: needs the liquid and plastic limits");
+        return undet(x, SG_QNAME("liquidity_index"), SG_QUNIT(""), "not determined: needs the liquid and plastic limits");
     }
     const double l = rec->liquid_limit_pct, p = rec->plastic_limit_pct;
     if (!isfinite(l) || !isfinite(p) || l <= 0.0 || p <= 0.0 || l > LL_MAX_PCT || p > LL_MAX_PCT) {
@@ -260,10 +257,10 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
                        "dry mass, within 0-%g %%)",
                        l, p, LL_MAX_PCT)) != SG_OK)
             return st;
-        if ((st = undet(x, "plasticity_index_pct", "%", "not determined: liquid or plastic limit not credible")) !=
+        if ((st = undet(x, SG_QNAME("plasticity_index_pct"), SG_QUNIT("%"), "not determined: liquid or plastic limit not credible")) !=
             SG_OK)
             return st;
-        return undet(x, "liquidity_index", "", "not determined: liquid or plastic limit not credible");
+        return undet(x, SG_QNAME("liquidity_index"), SG_QUNIT(""), "not determined: liquid or plastic limit not credible");
     }
     *ll = l;
     if (p >= l) {
@@ -273,17 +270,17 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
                            "non-plastic: the plastic limit %g %% is not below the liquid limit %g %% (ASTM D4318 "
                            "reports NP)",
                            p, l);
-        if ((st = value(x, "plasticity_index_pct", "%", 0.0, note)) != SG_OK)
+        if ((st = value(x, SG_QNAME("plasticity_index_pct"), SG_QUNIT("%"), 0.0, note)) != SG_OK)
             return st;
-        return undet(x, "liquidity_index", "", "not determined: non-plastic (PI 0)");
+        return undet(x, SG_QNAME("liquidity_index"), SG_QUNIT(""), "not determined: non-plastic (PI 0)");
     }
     *pi = l - p;
     if (!x->no_notes)
         (void)snprintf(note, sizeof note, "PI = LL - PL = %g - %g (limits as given in the record)", l, p);
-    if ((st = value(x, "plasticity_index_pct", "%", *pi, note)) != SG_OK)
+    if ((st = value(x, SG_QNAME("plasticity_index_pct"), SG_QUNIT("%"), *pi, note)) != SG_OK)
         return st;
     if (!rec->has_natural_moisture || !isfinite(rec->natural_moisture_pct) || rec->natural_moisture_pct < 0.0)
-        return undet(x, "liquidity_index", "",
+        return undet(x, SG_QNAME("liquidity_index"), SG_QUNIT(""),
                      "not determined: needs the natural moisture content (test,natural_moisture_pct)");
     const double li = (rec->natural_moisture_pct - p) / *pi;
     if (!x->no_notes)
@@ -291,7 +288,7 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
                        li < 0.0   ? "drier than the plastic limit (semi-solid)"
                        : li > 1.0 ? "wetter than the liquid limit (liquid when remoulded; sensitive)"
                                   : "between the plastic and liquid limits (plastic)");
-    return value(x, "liquidity_index", "", li, note);
+    return value(x, SG_QNAME("liquidity_index"), SG_QUNIT(""), li, note);
 }
 
 static enum sg_status add_chart(struct ctx *x, double ll, double pi)
@@ -300,9 +297,9 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
     note[0] = '\0';
     enum sg_status st;
     if (!isfinite(ll) || !isfinite(pi)) {
-        if ((st = undet(x, "casagrande_chart", "", "not determined: needs the liquid and plastic limits")) != SG_OK)
+        if ((st = undet(x, SG_QNAME("casagrande_chart"), SG_QUNIT(""), "not determined: needs the liquid and plastic limits")) != SG_OK)
             return st;
-        return undet(x, "bs5930_plasticity", "", "not determined: needs the liquid and plastic limits");
+        return undet(x, SG_QNAME("bs5930_plasticity"), SG_QUNIT(""), "not determined: needs the liquid and plastic limits");
     }
     const enum sg_chart_zone z = sg_plasticity_chart_zone(ll, pi);
     if (!x->no_notes)
@@ -311,7 +308,7 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
                        "%% (0.9 (LL - 8))%s",
                        ll, pi, sg_plasticity_a_line_pi(ll), sg_plasticity_u_line_pi(ll),
                        z == SG_CHART_ABOVE_U ? "; beyond the upper limit of natural soils: re-test the limits" : "");
-    if ((st = text(x, "casagrande_chart", sg_plasticity_zone_name(z), note)) != SG_OK)
+    if ((st = text(x, SG_QNAME("casagrande_chart"), sg_plasticity_zone_name(z), note)) != SG_OK)
         return st;
     if (z == SG_CHART_ABOVE_U &&
         (st = FLAG(x, "plasticity_u_line", SG_SEVERITY_WARNING,
@@ -323,7 +320,7 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
     char letter = '\0';
     const char *term = sg_plasticity_bs5930_term(ll, &letter);
     if (term == NULL)
-        return undet(x, "bs5930_plasticity", "", "not determined: liquid limit not credible");
+        return undet(x, SG_QNAME("bs5930_plasticity"), SG_QUNIT(""), "not determined: liquid limit not credible");
     /* "<M|C><letter>: <silt|clay> of <term> plasticity" (well within the text's size) */
     char t[SG_QTEXT_MAX] = "non-plastic";
     if (z != SG_CHART_NON_PLASTIC) {
@@ -337,15 +334,16 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
         memcpy(t + 12, term, lt);
         memcpy(t + 12 + lt, " plasticity", sizeof " plasticity");
     }
-    return text(x, "bs5930_plasticity", t,
+    return text(x, SG_QNAME("bs5930_plasticity"), t,
                 "BS 5930 plasticity by liquid limit (from memory): low < 35, intermediate 35-50, high 50-70, "
                 "very high 70-90, extremely high >= 90 %; C above the A-line, M below");
 }
 
 static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, double ll, double pi)
 {
-    struct sg_uscs_input in = {.cu = quantity(res, "cu"), .cc = quantity(res, "cc"), .ll_pct = ll, .pi_pct = pi};
-    uscs_fractions(&res->curve, &in.gravel_pct, &in.sand_pct, &in.fines_pct);
+    struct sg_uscs_input in = {
+        .cu = sg_result_key(res, SG_KEY_CU), .cc = sg_result_key(res, SG_KEY_CC), .ll_pct = ll, .pi_pct = pi};
+    uscs_fractions(res, &in.gravel_pct, &in.sand_pct, &in.fines_pct);
     const char *why = "";
     const char *sym = sg_plasticity_uscs_symbol(&in, &why);
     enum sg_status st;
@@ -373,7 +371,7 @@ static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, doubl
     if (sym == NULL) {
         if (!x->no_notes)
             (void)snprintf(note, sizeof note, "not determined: %s", why);
-        return undet(x, "uscs_symbol", "", note);
+        return undet(x, SG_QNAME("uscs_symbol"), SG_QUNIT(""), note);
     }
     if (!x->no_notes)
         (void)snprintf(note, sizeof note,
@@ -381,7 +379,7 @@ static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, doubl
                        "75 mm%s; inorganic assumed (OL/OH need the oven-dried liquid limit)",
                        in.fines_pct,
                        isfinite(ll) ? " and the plasticity of the fines" : "");
-    return text(x, "uscs_symbol", sym, note);
+    return text(x, SG_QNAME("uscs_symbol"), sym, note);
 }
 
 static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, double pi)
@@ -389,22 +387,22 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
     enum sg_status st;
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
-    const double cf = quantity(res, "clay_pct");
+    const double cf = sg_result_key(res, SG_KEY_CLAY_PCT);
     if (!isfinite(pi)) {
-        if ((st = undet(x, "activity", "", "not determined: needs the plasticity index")) != SG_OK)
+        if ((st = undet(x, SG_QNAME("activity"), SG_QUNIT(""), "not determined: needs the plasticity index")) != SG_OK)
             return st;
-        return undet(x, "activity_class", "", "not determined: needs the plasticity index");
+        return undet(x, SG_QNAME("activity_class"), SG_QUNIT(""), "not determined: needs the plasticity index");
     }
     if (!isfinite(cf)) {
         if ((st = FLAG(x, "activity_not_computed", SG_SEVERITY_INFO,
                        "the clay fraction (finer than 0.002 mm) is not determined: the curve does not reach 2 um, "
                        "so Skempton's activity cannot be computed (extend the readings to a finer size)")) != SG_OK)
             return st;
-        if ((st = undet(x, "activity", "",
+        if ((st = undet(x, SG_QNAME("activity"), SG_QUNIT(""),
                         "not determined: the clay fraction is not determined (the curve does not reach 0.002 mm)")) !=
             SG_OK)
             return st;
-        return undet(x, "activity_class", "", "not determined: the clay fraction is not determined");
+        return undet(x, SG_QNAME("activity_class"), SG_QUNIT(""), "not determined: the clay fraction is not determined");
     }
     if (pi <= 0.0) {
         if (cf >= SG_PLAST_PLASTIC_CLAY_MIN_PCT &&
@@ -413,14 +411,14 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
                        "check the limits, the dispersion or whether the fines are rock flour",
                        cf, SG_PLAST_PLASTIC_CLAY_MIN_PCT)) != SG_OK)
             return st;
-        if ((st = undet(x, "activity", "", "not determined: non-plastic (PI 0)")) != SG_OK)
+        if ((st = undet(x, SG_QNAME("activity"), SG_QUNIT(""), "not determined: non-plastic (PI 0)")) != SG_OK)
             return st;
-        return undet(x, "activity_class", "", "not determined: non-plastic");
+        return undet(x, SG_QNAME("activity_class"), SG_QUNIT(""), "not determined: non-plastic");
     }
     if (!(cf > 0.0)) {
-        if ((st = undet(x, "activity", "", "not determined: no clay-size material (clay fraction 0 %)")) != SG_OK)
+        if ((st = undet(x, SG_QNAME("activity"), SG_QUNIT(""), "not determined: no clay-size material (clay fraction 0 %)")) != SG_OK)
             return st;
-        return undet(x, "activity_class", "", "not determined: no clay-size material");
+        return undet(x, SG_QNAME("activity_class"), SG_QUNIT(""), "not determined: no clay-size material");
     }
     const double a = pi / cf;
     if (!x->no_notes)
@@ -428,7 +426,7 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
                        "Skempton activity A = PI / clay fraction = %g / %.2f (clay: %% of the whole sample finer than "
                        "0.002 mm)",
                        pi, cf);
-    if ((st = value(x, "activity", "", a, note)) != SG_OK)
+    if ((st = value(x, SG_QNAME("activity"), SG_QUNIT(""), a, note)) != SG_OK)
         return st;
     if ((a < SG_ACTIVITY_MINERAL_MIN || a > SG_ACTIVITY_MINERAL_MAX) &&
         (st = FLAG(x, "activity_range", SG_SEVERITY_WARNING,
@@ -436,7 +434,7 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
                    "Na-smectite): check the plasticity index and the clay fraction",
                    a, SG_ACTIVITY_MINERAL_MIN, SG_ACTIVITY_MINERAL_MAX)) != SG_OK)
         return st;
-    return text(x, "activity_class", sg_plasticity_activity_class(a),
+    return text(x, SG_QNAME("activity_class"), sg_plasticity_activity_class(a),
                 "Skempton (1953) classes: inactive < 0.75, normal 0.75-1.25, active > 1.25");
 }
 

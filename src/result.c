@@ -33,6 +33,7 @@ void sg_result_clear(struct sg_result *r)
     r->id[0] = '\0';
     r->calibration_used[0] = '\0';
     r->pp_split = NAN;
+    r->has_keys = false;
     sg_curve_clear(&r->curve); /* its buffers serve the next record */
 }
 
@@ -103,15 +104,35 @@ enum sg_status sg_result_reserve_quantity(struct sg_result *r)
     return st;
 }
 
-/* A row named by a string: the name zero-padded first, so that equal
- * names are equal arrays (a cheap first test in mc.c). */
+void sg_quantity_copy_note(struct sg_quantity *q, const char *note)
+{
+    copy_text(q->note, sizeof q->note, note);
+}
+
+void sg_quantity_set_text(struct sg_quantity *q, const char *text)
+{
+    q->is_text = true;
+    q->determined = text != NULL && text[0] != '\0';
+    copy_text(q->text, sizeof q->text, text);
+}
+
+/* Copies src (NULL: empty) into dst of size n, zero-filled beforehand, cut
+ * at n - 1 bytes. */
+static void pad_into(char *dst, size_t n, const char *src)
+{
+    if (src != NULL)
+        memcpy(dst, src, strnlen(src, n - 1));
+}
+
+/* A row named by a string: the name and unit zero-padded first, so that
+ * equal names are equal arrays (a cheap first test in mc.c). */
 static struct sg_quantity *new_quantity(struct sg_result *r, const char *name, const char *unit,
                                         const char *note)
 {
-    char padded[SG_QNAME_MAX];
-    memset(padded, 0, sizeof padded);
-    copy_text(padded, sizeof padded, name);
-    return sg_result_new_quantity(r, padded, unit, note);
+    char padded[SG_QNAME_MAX] = "", padded_unit[SG_QUNIT_MAX] = "";
+    pad_into(padded, sizeof padded, name);
+    pad_into(padded_unit, sizeof padded_unit, unit);
+    return sg_result_new_quantity(r, padded, padded_unit, note);
 }
 
 enum sg_status sg_result_add_value(struct sg_result *r, const char *name, const char *unit, double value,
@@ -120,19 +141,14 @@ enum sg_status sg_result_add_value(struct sg_result *r, const char *name, const 
     struct sg_quantity *q = new_quantity(r, name, unit, note);
     if (q == NULL)
         return SG_ENOMEM;
-    q->determined = isfinite(value);
-    q->value = value;
+    sg_quantity_set_value(q, value);
     return SG_OK;
 }
 
 enum sg_status sg_result_add_undetermined(struct sg_result *r, const char *name, const char *unit,
                                           const char *note)
 {
-    struct sg_quantity *q = new_quantity(r, name, unit, note);
-    if (q == NULL)
-        return SG_ENOMEM;
-    q->determined = false;
-    return SG_OK;
+    return new_quantity(r, name, unit, note) != NULL ? SG_OK : SG_ENOMEM;
 }
 
 enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const char *text, const char *note)
@@ -140,9 +156,7 @@ enum sg_status sg_result_add_text(struct sg_result *r, const char *name, const c
     struct sg_quantity *q = new_quantity(r, name, "", note);
     if (q == NULL)
         return SG_ENOMEM;
-    q->is_text = true;
-    q->determined = text != NULL && text[0] != '\0';
-    copy_text(q->text, sizeof q->text, text);
+    sg_quantity_set_text(q, text);
     return SG_OK;
 }
 
@@ -160,41 +174,50 @@ struct sg_quantity *sg_result_quantity(const struct sg_result *r, const char *na
     return NULL;
 }
 
-/* Every field of *p, one store each (no memset and no struct copy: a copy
- * read back right after narrower stores stalls on store forwarding). */
-static void blank_into(struct sg_point *p, enum sg_source source, unsigned line)
+double sg_result_key(const struct sg_result *r, enum sg_key k)
 {
-    p->source = source;
-    p->line = line;
-    p->diameter_mm = p->percent_finer = p->percent_specimen = NAN;
-    p->retained_g = p->cumulative_retained_g = NAN;
-    p->elapsed_min = p->temp_c = p->reading = p->blank_reading = p->corrected_reading = NAN;
-    p->depth_reading = p->effective_depth_mm = p->concentration_g_l = NAN;
-    p->solids_g = p->net_solids_g = NAN;
-    p->water_density_kg_m3 = p->viscosity_mpa_s = p->reynolds = NAN;
-    p->percent_finer_u = NAN;
-    p->flags = 0;
-    p->on_curve = false;
+    /* ASTM D2487 sizes, mm, and their log10, correctly rounded (checked
+     * against 60-digit decimal arithmetic; what log10() returns for them) */
+    static const struct {
+        const char *row; /* NULL: a reading of the curve at d_mm */
+        double d_mm, log10_d;
+    } src[SG_N_KEYS] = {
+        [SG_KEY_D10_MM] = {"d10_mm", 0.0, 0.0},
+        [SG_KEY_D15_MM] = {"d15_mm", 0.0, 0.0},
+        [SG_KEY_CU] = {"cu", 0.0, 0.0},
+        [SG_KEY_CC] = {"cc", 0.0, 0.0},
+        [SG_KEY_CLAY_PCT] = {"clay_pct", 0.0, 0.0},
+        [SG_KEY_FINER_0_02_MM_PCT] = {"finer_0_02_mm_pct", 0.0, 0.0},
+        [SG_KEY_P_75_MM_PCT] = {NULL, 75.0, 1.8750612633917},
+        [SG_KEY_P_4_75_MM_PCT] = {NULL, 4.75, 0.6766936096248666},
+        [SG_KEY_P_0_075_MM_PCT] = {NULL, 0.075, -1.1249387366083},
+    };
+    if ((unsigned)k >= SG_N_KEYS)
+        return NAN;
+    if (r->has_keys)
+        return r->keys[k];
+    if (src[k].row != NULL) {
+        const struct sg_quantity *q = sg_result_quantity(r, src[k].row);
+        return q != NULL ? sg_quantity_number(q) : (double)NAN;
+    }
+    double p;
+    return sg_curve_percent_at_log10(&r->curve, src[k].d_mm, src[k].log10_d, &p, NULL) == SG_OK ? p : (double)NAN;
 }
 
 struct sg_point sg_point_blank(enum sg_source source, unsigned line)
 {
     struct sg_point p;
     memset(&p, 0, sizeof p);
-    blank_into(&p, source, line);
+    sg_point_blank_into(&p, source, line);
     return p;
 }
 
-struct sg_point *sg_result_new_point(struct sg_result *r, enum sg_source source, unsigned line)
+enum sg_status sg_result_reserve_point(struct sg_result *r)
 {
     void *items = r->points;
     enum sg_status st = grow(&items, r->n_points, &r->cap_points, sizeof *r->points);
     r->points = items;
-    if (st != SG_OK)
-        return NULL;
-    struct sg_point *p = &r->points[r->n_points++];
-    blank_into(p, source, line);
-    return p;
+    return st;
 }
 
 enum sg_severity sg_result_worst(const struct sg_result *r)

@@ -56,35 +56,31 @@ enum sg_status sg_screens_terzaghi(double base_d15_mm, double base_d85_mm, doubl
     return SG_OK;
 }
 
-static double quantity(const struct sg_result *res, const char *name)
-{
-    const struct sg_quantity *q = sg_result_quantity(res, name);
-    return (q != NULL && q->determined && !q->is_text) ? q->value : (double)NAN;
-}
-
 static enum sg_status nomem(struct sg_error *err)
 {
     return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory adding the screens");
 }
 
+/* The hazen_k_cm_s and frost_screen rows are named by whole arrays
+ * (SG_QNAME), copied as one block: they are added once per Monte Carlo
+ * draw. */
 static enum sg_status add_hazen(struct sg_result *res, bool quiet, struct sg_error *err)
 {
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
-    const double d10 = quantity(res, "d10_mm"), cu = quantity(res, "cu");
-    enum sg_status st;
+    const double d10 = sg_result_key(res, SG_KEY_D10_MM), cu = sg_result_key(res, SG_KEY_CU);
+    const char *why = note;
+    double k = NAN; /* not determined */
     if (!isfinite(d10))
-        st = sg_result_add_undetermined(res, "hazen_k_cm_s", "cm/s",
-                                        quiet ? "" : "not determined: D10 is not determined");
+        why = quiet ? "" : "not determined: D10 is not determined";
     else if (!sg_screens_hazen_valid(d10)) {
         if (!quiet)
             (void)snprintf(note, sizeof note,
                            "not determined: D10 %.3g mm is outside Hazen's validity window %g-%g mm (empirical "
                            "screen for loose clean sands)",
                            d10, SG_HAZEN_D10_MIN_MM, SG_HAZEN_D10_MAX_MM);
-        st = sg_result_add_undetermined(res, "hazen_k_cm_s", "cm/s", note);
     } else {
-        const double k = sg_screens_hazen_k_cm_s(d10);
+        k = sg_screens_hazen_k_cm_s(d10);
         if (!quiet)
             (void)snprintf(note, sizeof note,
                            "empirical screen, not a design value: Hazen k = C D10^2, C = %g (cm/s)/mm^2, D10 %.3g mm "
@@ -92,27 +88,28 @@ static enum sg_status add_hazen(struct sg_result *res, bool quiet, struct sg_err
                            SG_HAZEN_C_CM_S_PER_MM2, d10, k / 100.0, SG_HAZEN_D10_MIN_MM, SG_HAZEN_D10_MAX_MM,
                            isfinite(cu) && cu >= SG_HAZEN_CU_NOTE ? "; Cu >= 5: not the uniform sand Hazen assumed"
                                                                   : "");
-        st = sg_result_add_value(res, "hazen_k_cm_s", "cm/s", k, note);
     }
-    return st == SG_OK ? SG_OK : nomem(err);
+    struct sg_quantity *q = sg_result_new_quantity(res, SG_QNAME("hazen_k_cm_s"), SG_QUNIT("cm/s"), why);
+    if (q == NULL)
+        return nomem(err);
+    sg_quantity_set_value(q, k);
+    return SG_OK;
 }
 
 static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_error *err)
 {
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
-    double p = quantity(res, "finer_0_02_mm_pct");
+    double p = sg_result_key(res, SG_KEY_FINER_0_02_MM_PCT);
     if (!isfinite(p) && sg_curve_percent_at(&res->curve, SG_FROST_SIZE_MM, &p, NULL) != SG_OK)
         p = NAN;
-    enum sg_status st;
+    const char *why = note, *class_name = NULL; /* NULL: not determined (a numeric row) */
     if (!isfinite(p)) {
-        st = sg_result_add_undetermined(res, "frost_screen", "",
-                                        quiet ? "" : "not determined: the percent finer than 0.02 mm is not "
-                                                     "determined");
+        why = quiet ? "" : "not determined: the percent finer than 0.02 mm is not determined";
     } else {
-        const double cu = quantity(res, "cu");
+        const double cu = sg_result_key(res, SG_KEY_CU);
         const bool uniform = isfinite(cu) && cu < SG_FROST_UNIFORM_CU_MAX;
-        const enum sg_frost_class c = sg_screens_frost(p, uniform);
+        class_name = sg_screens_frost_name(sg_screens_frost(p, uniform));
         if (!quiet)
             (void)snprintf(note, sizeof note,
                            "empirical screen, not a design decision: %.1f %% finer than 0.02 mm; %s limits %g %% "
@@ -121,9 +118,13 @@ static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_err
                            uniform ? SG_FROST_UNIFORM_POSSIBLE_PCT : SG_FROST_POSSIBLE_PCT,
                            uniform ? SG_FROST_UNIFORM_SUSCEPTIBLE_PCT : SG_FROST_SUSCEPTIBLE_PCT,
                            isfinite(cu) ? "" : "; Cu not determined, non-uniform limits used");
-        st = sg_result_add_text(res, "frost_screen", sg_screens_frost_name(c), note);
     }
-    return st == SG_OK ? SG_OK : nomem(err);
+    struct sg_quantity *q = sg_result_new_quantity(res, SG_QNAME("frost_screen"), SG_QUNIT(""), why);
+    if (q == NULL)
+        return nomem(err);
+    if (class_name != NULL)
+        sg_quantity_set_text(q, class_name);
+    return SG_OK;
 }
 
 /* One Terzaghi ratio row: D15 of this test over the base soil's size
@@ -150,7 +151,7 @@ static enum sg_status ratio_row(struct sg_result *res, const char *name, bool ha
 static enum sg_status add_filter(struct sg_result *res, const struct sg_reduce_options *opt, bool quiet,
                                  struct sg_error *err)
 {
-    const double d15 = quantity(res, "d15_mm");
+    const double d15 = sg_result_key(res, SG_KEY_D15_MM);
     const double base15 = opt->base_d15_mm, base85 = opt->base_d85_mm;
     const char *id = opt->base_soil_id;
     char note[SG_QNOTE_MAX];

@@ -450,6 +450,48 @@ Test(summary, undetermined_when_not_reached)
     sg_result_release(&res);
 }
 
+/* The numbers the summary keeps for the later summaries (result.h) are
+ * what looking up their rows, or reading the curve, gives: with and
+ * without notes, on a curve that reaches everything and on one that
+ * reaches neither D10 nor 0.002 mm nor 75 mm. */
+Test(summary, kept_keys_equal_the_lookups)
+{
+    const struct sg_curve_point full[] = {{0.001, 4.0, 2},  {0.0031, 12.0, 2}, {0.012, 38.0, 2}, {0.063, 52.0, 0},
+                                          {0.425, 70.0, 0}, {2.0, 81.0, 0},    {75.0, 100.0, 0}};
+    const struct sg_curve_point part[] = {{0.0031, 23.4, 2}, {0.012, 38.0, 2}, {0.063, 52.0, 0},
+                                          {0.425, 70.0, 0},  {2.0, 81.0, 0},   {20.0, 95.0, 0}};
+    const struct {
+        const struct sg_curve_point *p;
+        size_t n;
+    } curves[] = {{full, sizeof full / sizeof full[0]}, {part, sizeof part / sizeof part[0]}};
+    for (size_t c = 0; c < 2; c++)
+        for (int quiet = 0; quiet < 2; quiet++) {
+            struct sg_reduce_options opt = sg_reduce_options_default();
+            opt.values_only = quiet;
+            struct sg_result res;
+            sg_result_init(&res);
+            summarise(&res, curves[c].p, curves[c].n, SG_INTERP_LOGLINEAR, &opt);
+            cr_assert(res.has_keys);
+            for (int k = 0; k < SG_N_KEYS; k++) {
+                const double kept = sg_result_key(&res, (enum sg_key)k);
+                res.has_keys = false;
+                const double looked_up = sg_result_key(&res, (enum sg_key)k);
+                res.has_keys = true;
+                cr_assert(memcmp(&kept, &looked_up, sizeof kept) == 0 || (isnan(kept) && isnan(looked_up)),
+                          "curve %zu, quiet %d, key %d: kept %g, looked up %g", c, quiet, k, kept, looked_up);
+            }
+            if (c == 1) /* D10, clay and P(75 mm) not reached */
+                cr_assert(isnan(res.keys[SG_KEY_D10_MM]) && isnan(res.keys[SG_KEY_CLAY_PCT]) &&
+                          isnan(res.keys[SG_KEY_P_75_MM_PCT]) && !isnan(res.keys[SG_KEY_FINER_0_02_MM_PCT]));
+            else
+                for (int k = 0; k < SG_N_KEYS; k++)
+                    cr_assert(isfinite(res.keys[k]), "key %d not kept", k);
+            sg_result_clear(&res);
+            cr_assert(!res.has_keys);
+            sg_result_release(&res);
+        }
+}
+
 Test(summary, empty_curve_all_undetermined)
 {
     struct sg_result res;
