@@ -948,10 +948,20 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     struct reading d[N_DP];
     char d_why[N_DP][MSG_MAX];
     const size_t d10_row = res->n_quantities; /* then d15_mm, ..., one row each */
-    for (size_t i = 0; i < N_DP; i++)
-        if ((st = dx_reading(&x, dp_pct[i], dv[i], dst[i], &d[i], d_why[i])) != SG_OK ||
-            (st = add_dx_row(&x, dp_pct[i], dp[i].name, dp[i].shown, &d[i])) != SG_OK)
+    for (size_t i = 0; i < N_DP; i++) {
+        if (x.quiet && dst[i] != SG_ENOMEM) {
+            /* values only (each Monte Carlo draw): the rows of dx_reading
+             * and add_dx_row without their notes */
+            const bool ok = dst[i] == SG_OK;
+            d[i] = (struct reading){ok, ok ? dv[i] : (double)NAN, ""};
+            st = ok ? add_value(&x, dp[i].name, UNIT_MM, dv[i], "")
+                    : add_undet(&x, dp[i].name, UNIT_MM, "D%g not determined", dp_pct[i]);
+        } else if ((st = dx_reading(&x, dp_pct[i], dv[i], dst[i], &d[i], d_why[i])) == SG_OK) {
+            st = add_dx_row(&x, dp_pct[i], dp[i].name, dp[i].shown, &d[i]);
+        }
+        if (st != SG_OK)
             return st;
+    }
     keep(&x, SG_KEY_D10_MM, d10_row);
     keep(&x, SG_KEY_D15_MM, d10_row + 1);
     double cu, cc;
