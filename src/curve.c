@@ -362,30 +362,39 @@ void sg_curve_percent_at_sorted(const struct sg_curve *c, const double *d_mm, co
         return;
     }
     /* log-linear: one walk along the segments, the sizes being in order */
+    const double *const lg = c->log10_d, *const pc = c->percent;
     const size_t last = c->n - 1;
+    const double x_lo = lg[0], x_hi = lg[last];
+    /* the end rules of sg_curve_percent_at_log10 */
+    const bool top_100 = fabs(pc[last] - 100.0) <= SG_CURVE_END_TOL_PCT;
+    const bool bottom_0 = fabs(pc[0]) <= SG_CURVE_END_TOL_PCT;
     size_t seg = 1; /* first node coarser than x (segment_of), never moving back */
     for (size_t i = 0; i < m; i++) {
-        percent[i] = NAN;
         const double d = d_mm[i];
-        if (!isfinite(d) || d <= 0.0) {
+        if (!(d > 0.0 && d <= DBL_MAX)) { /* not positive and finite */
+            percent[i] = NAN;
             st[i] = SG_EINVAL;
             continue;
         }
         double x = log10_d_mm[i];
-        if (!within_range(&x, c->log10_d[0], c->log10_d[last])) {
-            /* the end rules of sg_curve_percent_at_log10 */
-            if (x > c->log10_d[last] ? fabs(c->percent[last] - 100.0) <= SG_CURVE_END_TOL_PCT
-                                     : fabs(c->percent[0]) <= SG_CURVE_END_TOL_PCT) {
-                percent[i] = x > c->log10_d[last] ? 100.0 : 0.0;
+        /* within_range changes nothing inside the range, so it is asked
+         * only outside */
+        if (!(x >= x_lo && x <= x_hi) && !within_range(&x, x_lo, x_hi)) {
+            const bool above = x > x_hi;
+            if (above ? top_100 : bottom_0) {
+                percent[i] = above ? 100.0 : 0.0;
                 st[i] = SG_OK;
             } else {
+                percent[i] = NAN;
                 st[i] = SG_EDOM;
             }
             continue;
         }
-        while (seg < last && c->log10_d[seg] <= x)
+        while (seg < last && lg[seg] <= x)
             seg++;
-        percent[i] = loglinear_percent(c, seg, x);
+        /* loglinear_percent, written out */
+        const double x0 = lg[seg - 1], x1 = lg[seg], p0 = pc[seg - 1], p1 = pc[seg];
+        percent[i] = x <= x0 ? p0 : x >= x1 ? p1 : p0 + (p1 - p0) * (x - x0) / (x1 - x0);
         st[i] = SG_OK;
     }
 }

@@ -647,3 +647,69 @@ Test(curve, diameters_at_sorted_refusals)
     cr_assert(isnan(d[0]) && isnan(d[1]));
     sg_curve_diameters_at_sorted(&c, ps, 0, NULL, NULL);
 }
+
+Test(curve, percent_at_sorted_equals_the_single_reading)
+{
+    /* The same random curves, read at increasing sizes: every node, sizes
+     * just off a node and off the ends by less than SG_CURVE_SAME_LOG10_D,
+     * sizes beyond both ends (the 0 % / 100 % end rules), random ones, and
+     * non-positive or non-finite sizes: the same percent bit for bit and
+     * the same status as sg_curve_percent_at_log10. */
+    gsl_rng *g = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(g, 1202);
+    for (int trial = 0; trial < 1200; trial++) {
+        struct sg_curve_point pts[14];
+        const size_t n = random_curve(g, trial, pts);
+        if (trial % 4 == 1)
+            pts[n - 1].percent_finer = 100.0; /* end rules apply */
+        if (trial % 4 == 2)
+            pts[0].percent_finer = 0.0;
+        double xs[64];
+        size_t m = 0;
+        for (size_t i = 0; i < n; i++) {
+            const double x = log10(pts[i].diameter_mm);
+            xs[m++] = x;
+            xs[m++] = nextafter(x, INFINITY);
+            xs[m++] = x - 0.5e-12;
+            xs[m++] = x + 0.5e-12;
+        }
+        const double x_lo = log10(pts[0].diameter_mm), x_hi = log10(pts[n - 1].diameter_mm);
+        xs[m++] = x_lo - 0.1;
+        xs[m++] = x_hi + 0.1;
+        xs[m++] = x_lo - 2e-12;
+        xs[m++] = x_hi + 2e-12;
+        while (m < 60)
+            xs[m++] = x_lo - 0.2 + (x_hi - x_lo + 0.4) * gsl_rng_uniform(g);
+        qsort(xs, m, sizeof xs[0], cmp_double);
+        double ds[64];
+        for (size_t i = 0; i < m; i++)
+            ds[i] = pow(10.0, xs[i]);
+        ds[0] = trial % 3 == 0 ? 0.0 : trial % 3 == 1 ? -1.0 : (double)NAN; /* refused whatever its log10 */
+        ds[m - 1] = trial % 2 == 0 ? (double)INFINITY : ds[m - 1];
+        for (int method = 0; method < 2; method++) {
+            const enum sg_interp how = method == 0 ? SG_INTERP_LOGLINEAR : SG_INTERP_MONOTONE;
+            struct sg_curve c;
+            sg_curve_init(&c);
+            if (sg_curve_build(&c, pts, n, how, NULL) != SG_OK) {
+                sg_curve_release(&c);
+                continue;
+            }
+            double p[64];
+            enum sg_status st[64];
+            sg_curve_percent_at_sorted(&c, ds, xs, m, p, st);
+            for (size_t i = 0; i < m; i++) {
+                double want = NAN;
+                const enum sg_status want_st = sg_curve_percent_at_log10(&c, ds[i], xs[i], &want, NULL);
+                cr_assert_eq(st[i], want_st, "trial %d, method %d, log10 D %.17g: status %d, single %d", trial,
+                             method, xs[i], (int)st[i], (int)want_st);
+                if (want_st == SG_OK)
+                    cr_assert(memcmp(&p[i], &want, sizeof want) == 0, "trial %d, method %d, log10 D %.17g: %.17g, "
+                              "single %.17g", trial, method, xs[i], p[i], want);
+                else
+                    cr_assert(isnan(p[i]), "trial %d: %g where it fails", trial, p[i]);
+            }
+            sg_curve_release(&c);
+        }
+    }
+    gsl_rng_free(g);
+}
