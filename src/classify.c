@@ -377,22 +377,37 @@ static struct reading at(const struct ctx *x, enum bound b)
     return (struct reading){ok, x->p[b], ok || x->quiet ? "" : x->why[b]};
 }
 
-/* D at percent p; the reason for a failure (not quiet) lands in why_buf
- * (MSG_MAX bytes). ENOMEM is the only status passed on. */
-static enum sg_status diameter_at(struct ctx *x, double p, struct reading *r, char *why_buf)
+/* The reading of D at percent p from the curve's answer (value, status
+ * got); when it failed and the result is not quiet, the answer and its
+ * reason come from asking again with a message, the reason landing in
+ * why_buf (MSG_MAX bytes). ENOMEM is the only status passed on. */
+static enum sg_status dx_reading(struct ctx *x, double p, double value, enum sg_status got, struct reading *r,
+                                 char *why_buf)
 {
     struct sg_error e;
-    r->value = NAN;
+    r->value = got == SG_OK ? value : (double)NAN;
     r->why = "";
-    enum sg_status st = sg_curve_diameter_at(x->curve, p, &r->value, x->quiet ? NULL : &e);
-    r->ok = st == SG_OK;
-    if (st == SG_ENOMEM) /* the monotone curve's root finder, the only allocation */
+    if (got != SG_OK && !x->quiet) {
+        sg_error_clear(&e);
+        r->value = NAN;
+        got = sg_curve_diameter_at(x->curve, p, &r->value, &e);
+    }
+    r->ok = got == SG_OK;
+    if (got == SG_ENOMEM) /* the monotone curve's root finder, the only allocation */
         return sg_error_set(x->err, SG_ENOMEM, 0, 0, "%s", x->quiet ? "out of memory for the root finder" : e.msg);
     if (!r->ok && !x->quiet) {
         copy_msg(why_buf, e.msg);
         r->why = why_buf;
     }
     return SG_OK;
+}
+
+/* D at percent p (one reading; the summary's six are read together). */
+static enum sg_status diameter_at(struct ctx *x, double p, struct reading *r, char *why_buf)
+{
+    double v = NAN;
+    const enum sg_status got = sg_curve_diameter_at(x->curve, p, &v, NULL);
+    return dx_reading(x, p, v, got, r, why_buf);
 }
 
 /* The percentage x written for a quantity name: 2.5 -> "2_5", 10 -> "10"
@@ -442,11 +457,10 @@ static void join(char *buf, size_t n, const char *first, ...)
     buf[used] = '\0';
 }
 
-/* Adds d<x>_mm, named name (NULL: from p) with p written as shown (p as
- * "%g" would write it; NULL: formatted); stores the reading in *out when
- * out is not NULL. */
-static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_MAX], const char *shown,
-                             struct reading *out, char *why_buf)
+/* Adds d<x>_mm for the reading r of D at percent p, named name (NULL: from
+ * p) with p written as shown (p as "%g" would write it; NULL: formatted). */
+static enum sg_status add_dx_row(struct ctx *x, double p, const char name[SG_QNAME_MAX], const char *shown,
+                                 const struct reading *r)
 {
     char label[24], name_buf[SG_QNAME_MAX];
     if (name == NULL) {
@@ -455,14 +469,8 @@ static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_M
         join(name_buf, sizeof name_buf, "d", label, "_mm", (const char *)NULL);
         name = name_buf;
     }
-    struct reading r;
-    enum sg_status st = diameter_at(x, p, &r, why_buf);
-    if (st != SG_OK)
-        return st;
-    if (out != NULL)
-        *out = r;
-    if (!r.ok)
-        return add_undet(x, name, UNIT_MM, "D%g not determined: %s", p, r.why);
+    if (!r->ok)
+        return add_undet(x, name, UNIT_MM, "D%g not determined: %s", p, r->why);
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
     if (!x->quiet) {
@@ -473,7 +481,18 @@ static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_M
             fmt_into(note, sizeof note, "size at which %g %% is finer (%s interpolation on log10 D)", p,
                      x->interp_word);
     }
-    return add_value(x, name, UNIT_MM, r.value, note);
+    return add_value(x, name, UNIT_MM, r->value, note);
+}
+
+/* Adds d<x>_mm as add_dx_row, reading D at p from the curve. */
+static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_MAX], const char *shown,
+                             char *why_buf)
+{
+    struct reading r;
+    enum sg_status st = diameter_at(x, p, &r, why_buf);
+    if (st != SG_OK)
+        return st;
+    return add_dx_row(x, p, name, shown, &r);
 }
 
 /* Percent finer between two bounds (lower B_ZERO: finer than upper); the
@@ -645,7 +664,7 @@ static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options
         if (p <= 0.0 || p > 100.0)
             st = add_undet(x, name, UNIT_MM, "not determined: %g %% is not a percentage in (0, 100]", p);
         else
-            st = add_dx(x, p, name, NULL, NULL, why);
+            st = add_dx(x, p, name, NULL, why);
         if (st != SG_OK)
             return st;
     }
@@ -914,18 +933,35 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     enum sg_status st;
     res->has_keys = false; /* until every key is kept */
 
+    /* the six D-values, read in one walk along the curve (the percents
+     * in increasing order) */
+    enum { N_DP = 6 };
+    static const double dp_pct[N_DP] = {10.0, 15.0, 30.0, 50.0, 60.0, 85.0};
     static const struct {
-        double p;
         char name[SG_QNAME_MAX];
         const char *shown;
-    } dp[] = {{10.0, "d10_mm", "10"}, {15.0, "d15_mm", "15"}, {30.0, "d30_mm", "30"},
-              {50.0, "d50_mm", "50"}, {60.0, "d60_mm", "60"}, {85.0, "d85_mm", "85"}};
-    struct reading d[6];
-    char d_why[6][MSG_MAX];
+    } dp[N_DP] = {{"d10_mm", "10"}, {"d15_mm", "15"}, {"d30_mm", "30"},
+                  {"d50_mm", "50"}, {"d60_mm", "60"}, {"d85_mm", "85"}};
+    double dv[N_DP];
+    enum sg_status dst[N_DP];
+    sg_curve_diameters_at_sorted(curve, dp_pct, N_DP, dv, dst);
+    struct reading d[N_DP];
+    char d_why[N_DP][MSG_MAX];
     const size_t d10_row = res->n_quantities; /* then d15_mm, ..., one row each */
-    for (size_t i = 0; i < sizeof dp / sizeof dp[0]; i++)
-        if ((st = add_dx(&x, dp[i].p, dp[i].name, dp[i].shown, &d[i], d_why[i])) != SG_OK)
+    for (size_t i = 0; i < N_DP; i++) {
+        if (x.quiet && dst[i] != SG_ENOMEM) {
+            /* values only (each Monte Carlo draw): the rows of dx_reading
+             * and add_dx_row without their notes */
+            const bool ok = dst[i] == SG_OK;
+            d[i] = (struct reading){ok, ok ? dv[i] : (double)NAN, ""};
+            st = ok ? add_value(&x, dp[i].name, UNIT_MM, dv[i], "")
+                    : add_undet(&x, dp[i].name, UNIT_MM, "D%g not determined", dp_pct[i]);
+        } else if ((st = dx_reading(&x, dp_pct[i], dv[i], dst[i], &d[i], d_why[i])) == SG_OK) {
+            st = add_dx_row(&x, dp_pct[i], dp[i].name, dp[i].shown, &d[i]);
+        }
+        if (st != SG_OK)
             return st;
+    }
     keep(&x, SG_KEY_D10_MM, d10_row);
     keep(&x, SG_KEY_D15_MM, d10_row + 1);
     double cu, cc;

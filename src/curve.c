@@ -362,30 +362,39 @@ void sg_curve_percent_at_sorted(const struct sg_curve *c, const double *d_mm, co
         return;
     }
     /* log-linear: one walk along the segments, the sizes being in order */
+    const double *const lg = c->log10_d, *const pc = c->percent;
     const size_t last = c->n - 1;
+    const double x_lo = lg[0], x_hi = lg[last];
+    /* the end rules of sg_curve_percent_at_log10 */
+    const bool top_100 = fabs(pc[last] - 100.0) <= SG_CURVE_END_TOL_PCT;
+    const bool bottom_0 = fabs(pc[0]) <= SG_CURVE_END_TOL_PCT;
     size_t seg = 1; /* first node coarser than x (segment_of), never moving back */
     for (size_t i = 0; i < m; i++) {
-        percent[i] = NAN;
         const double d = d_mm[i];
-        if (!isfinite(d) || d <= 0.0) {
+        if (!(d > 0.0 && d <= DBL_MAX)) { /* not positive and finite */
+            percent[i] = NAN;
             st[i] = SG_EINVAL;
             continue;
         }
         double x = log10_d_mm[i];
-        if (!within_range(&x, c->log10_d[0], c->log10_d[last])) {
-            /* the end rules of sg_curve_percent_at_log10 */
-            if (x > c->log10_d[last] ? fabs(c->percent[last] - 100.0) <= SG_CURVE_END_TOL_PCT
-                                     : fabs(c->percent[0]) <= SG_CURVE_END_TOL_PCT) {
-                percent[i] = x > c->log10_d[last] ? 100.0 : 0.0;
+        /* within_range changes nothing inside the range, so it is asked
+         * only outside */
+        if (!(x >= x_lo && x <= x_hi) && !within_range(&x, x_lo, x_hi)) {
+            const bool above = x > x_hi;
+            if (above ? top_100 : bottom_0) {
+                percent[i] = above ? 100.0 : 0.0;
                 st[i] = SG_OK;
             } else {
+                percent[i] = NAN;
                 st[i] = SG_EDOM;
             }
             continue;
         }
-        while (seg < last && c->log10_d[seg] <= x)
+        while (seg < last && lg[seg] <= x)
             seg++;
-        percent[i] = loglinear_percent(c, seg, x);
+        /* loglinear_percent, written out */
+        const double x0 = lg[seg - 1], x1 = lg[seg], p0 = pc[seg - 1], p1 = pc[seg];
+        percent[i] = x <= x0 ? p0 : x >= x1 ? p1 : p0 + (p1 - p0) * (x - x0) / (x1 - x0);
         st[i] = SG_OK;
     }
 }
@@ -408,15 +417,24 @@ static double steffen_minus_target(double x, void *params)
     return y - rp->target;
 }
 
-/* log10(D) in segment i (P[i-1] < p < P[i]) where the Steffen interpolant equals p. */
+/* log10(D) in segment i (P[i-1] < p < P[i]) where the Steffen interpolant
+ * equals p. The root finder is *kept when kept is not NULL (allocated here
+ * if *kept is NULL; the caller frees it), else allocated and freed here;
+ * gsl_root_fsolver_set sets the whole Brent state, so a kept one gives the
+ * same answers as a fresh one. */
 static enum sg_status steffen_solve(const struct sg_curve *c, size_t i, double p, double *x,
-                                    struct sg_error *err)
+                                    gsl_root_fsolver **kept, struct sg_error *err)
 {
     struct root_params rp = {c, p};
     gsl_function f = {steffen_minus_target, &rp};
-    gsl_root_fsolver *s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
-    if (s == NULL)
-        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory for the root finder");
+    gsl_root_fsolver *s = kept != NULL ? *kept : NULL;
+    if (s == NULL) {
+        s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
+        if (s == NULL)
+            return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory for the root finder");
+        if (kept != NULL)
+            *kept = s;
+    }
     enum sg_status st = SG_OK;
     int gs = gsl_root_fsolver_set(s, &f, c->log10_d[i - 1], c->log10_d[i]);
     if (gs != GSL_SUCCESS) {
@@ -444,7 +462,8 @@ static enum sg_status steffen_solve(const struct sg_curve *c, size_t i, double p
                       "finding the size at %g %% finer did not converge in %d iterations (report this curve)",
                       p, ROOT_MAX_ITER);
 cleanup:
-    gsl_root_fsolver_free(s);
+    if (kept == NULL)
+        gsl_root_fsolver_free(s);
     return st;
 }
 
@@ -471,25 +490,56 @@ static enum sg_status not_reached(const struct sg_curve *c, double p, struct sg_
                         p, pmin, pmax, pow(10.0, c->log10_d[0]), pow(10.0, c->log10_d[last]));
 }
 
+/* log10 of the diameter at percent p on segment i, where P[i-1] < p <=
+ * P[i] (solver: as for steffen_solve). */
+static enum sg_status log10_d_on_segment(const struct sg_curve *c, size_t i, double p, double *x,
+                                         gsl_root_fsolver **solver, struct sg_error *err)
+{
+    const double pf = c->percent[i - 1], pc = c->percent[i];
+    if (p == pc) {
+        *x = c->log10_d[i];
+        return SG_OK;
+    }
+    if (c->impl != NULL)
+        return steffen_solve(c, i, p, x, solver, err);
+    *x = c->log10_d[i - 1] + (p - pf) * (c->log10_d[i] - c->log10_d[i - 1]) / (pc - pf);
+    return SG_OK;
+}
+
 /* The diameter at percent p on segment i, where P[i-1] < p <= P[i]. */
 static enum sg_status diameter_on_segment(const struct sg_curve *c, size_t i, double p, double *d_mm,
                                           struct sg_error *err)
 {
-    const double pf = c->percent[i - 1], pc = c->percent[i];
-    if (p == pc) {
-        *d_mm = pow(10.0, c->log10_d[i]);
-        return SG_OK;
-    }
     double x = NAN;
-    if (c->impl != NULL) {
-        enum sg_status st = steffen_solve(c, i, p, &x, err);
-        if (st != SG_OK)
-            return st;
-    } else {
-        x = c->log10_d[i - 1] + (p - pf) * (c->log10_d[i] - c->log10_d[i - 1]) / (pc - pf);
-    }
-    *d_mm = pow(10.0, x);
-    return SG_OK;
+    const enum sg_status st = log10_d_on_segment(c, i, p, &x, NULL, err);
+    if (st == SG_OK)
+        *d_mm = pow(10.0, x);
+    return st;
+}
+
+/* Where a finite p lies outside (P[k], P[last]] (k = rising_from) is read:
+ * the first rising segment from the coarse end with P_fine < p <= P_coarse
+ * (none above node k, where the percent never falls, and segment k falls),
+ * else the first node from the coarse end at exactly p. */
+enum reach { REACH_NONE, REACH_SEGMENT, REACH_NODE };
+
+static enum reach reach_below_rising(const struct sg_curve *c, double p, size_t *at)
+{
+    /* no segment and no node has a p outside the nodes' range */
+    if (p < c->percent_min || p > c->percent_max)
+        return REACH_NONE;
+    for (size_t i = c->rising_from; i >= 1; i--)
+        if (c->percent[i - 1] < p && p <= c->percent[i]) {
+            *at = i;
+            return REACH_SEGMENT;
+        }
+    /* reached only at a node (the finest point or a local minimum) */
+    for (size_t i = c->n; i-- > 0;)
+        if (c->percent[i] == p) {
+            *at = i;
+            return REACH_NODE;
+        }
+    return REACH_NONE;
 }
 
 enum sg_status sg_curve_diameter_at(const struct sg_curve *c, double p, double *d_mm, struct sg_error *err)
@@ -504,8 +554,8 @@ enum sg_status sg_curve_diameter_at(const struct sg_curve *c, double p, double *
     /* Above node k the percent never falls, so at most one segment there
      * has P_fine < p <= P_coarse, and when P[k] < p <= P[last] one does
      * (the first node at or above p closes it): the highest such segment,
-     * the one the scan below would find first, found by bisection (D_x is
-     * asked for several times per Monte Carlo draw). */
+     * the one the scan from the coarse end would find first, found by
+     * bisection. */
     if (c->percent[k] < p && p <= c->percent[last]) {
         size_t lo = k, hi = last; /* P[lo] < p <= P[hi] */
         while (hi - lo > 1) {
@@ -517,19 +567,78 @@ enum sg_status sg_curve_diameter_at(const struct sg_curve *c, double p, double *
         }
         return diameter_on_segment(c, hi, p, d_mm, err);
     }
-    /* no segment and no node has a p outside the nodes' range */
-    if (p < c->percent_min || p > c->percent_max)
-        return not_reached(c, p, err);
-    /* scan from the coarse end: first rising segment with P_fine < p <=
-     * P_coarse (none above node k, as said above, and segment k falls) */
-    for (size_t i = k; i >= 1; i--)
-        if (c->percent[i - 1] < p && p <= c->percent[i])
-            return diameter_on_segment(c, i, p, d_mm, err);
-    /* reached only at a node (the finest point or a local minimum) */
-    for (size_t i = c->n; i-- > 0;)
-        if (c->percent[i] == p) {
-            *d_mm = pow(10.0, c->log10_d[i]);
-            return SG_OK;
-        }
+    size_t at = 0;
+    switch (reach_below_rising(c, p, &at)) {
+    case REACH_SEGMENT:
+        return diameter_on_segment(c, at, p, d_mm, err);
+    case REACH_NODE:
+        *d_mm = pow(10.0, c->log10_d[at]);
+        return SG_OK;
+    case REACH_NONE:
+        break;
+    }
     return not_reached(c, p, err);
+}
+
+void sg_curve_diameters_at_sorted(const struct sg_curve *c, const double *percent_finer, size_t m, double *d_mm,
+                                  enum sg_status *st)
+{
+    if (c == NULL || c->n < 2 || c->log10_d == NULL || c->percent == NULL) {
+        for (size_t i = 0; i < m; i++) {
+            d_mm[i] = NAN;
+            st[i] = sg_curve_diameter_at(c, percent_finer[i], &d_mm[i], NULL);
+        }
+        return;
+    }
+    const double *const lg = c->log10_d, *const pc = c->percent;
+    const size_t k = c->rising_from;
+    const double p_k = pc[k], p_last = pc[c->n - 1];
+    gsl_root_fsolver *solver = NULL; /* one root finder for all percents (monotone curve) */
+    /* Between P[k] and P[last] the segment is the one closing at the first
+     * node from k up at or above p (as the bisection in sg_curve_diameter_at
+     * finds it); for percents in increasing order that node never moves
+     * back, so one walk finds them all. */
+    size_t hi = k + 1;
+    double p_prev = -INFINITY; /* the last percent read there */
+    for (size_t i = 0; i < m; i++) {
+        const double p = percent_finer[i];
+        size_t seg = 0;
+        if (p_k < p && p <= p_last) { /* false for NaN and -inf, and +inf is above P[last] */
+            if (p < p_prev)           /* out of order: walk again from node k */
+                hi = k + 1;
+            p_prev = p;
+            while (pc[hi] < p) /* stops at last at the latest: p <= P[last] */
+                hi++;
+            seg = hi;
+        } else if (!isfinite(p)) {
+            d_mm[i] = NAN;
+            st[i] = SG_EINVAL;
+            continue;
+        } else {
+            const enum reach r = reach_below_rising(c, p, &seg);
+            if (r != REACH_SEGMENT) {
+                d_mm[i] = r == REACH_NODE ? pow(10.0, lg[seg]) : (double)NAN;
+                st[i] = r == REACH_NODE ? SG_OK : SG_EDOM;
+                continue;
+            }
+        }
+        /* as log10_d_on_segment, the log-linear case written out */
+        double x;
+        if (p == pc[seg]) {
+            x = lg[seg];
+        } else if (c->impl == NULL) {
+            x = lg[seg - 1] + (p - pc[seg - 1]) * (lg[seg] - lg[seg - 1]) / (pc[seg] - pc[seg - 1]);
+        } else {
+            const enum sg_status s = steffen_solve(c, seg, p, &x, &solver, NULL);
+            if (s != SG_OK) {
+                d_mm[i] = NAN;
+                st[i] = s;
+                continue;
+            }
+        }
+        d_mm[i] = pow(10.0, x);
+        st[i] = SG_OK;
+    }
+    if (solver != NULL)
+        gsl_root_fsolver_free(solver);
 }

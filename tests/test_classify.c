@@ -492,6 +492,55 @@ Test(summary, kept_keys_equal_the_lookups)
         }
 }
 
+/* The six D-values, read together in one walk (sg_curve_diameters_at_sorted),
+ * are what sg_curve_diameter_at gives one by one, with its message when
+ * not determined: on curves that fall below a sieve point at the splice,
+ * have a plateau at 30 % and 85 %, and do not reach 10 % or 15 %, with and
+ * without notes, both interpolations. Invented curves. */
+Test(summary, dx_rows_equal_the_single_reading)
+{
+    const struct sg_curve_point dip[] = {{0.002, 18.0, 2}, {0.01, 30.0, 2}, {0.05, 47.0, 2}, {0.063, 44.0, 0},
+                                         {0.2, 60.0, 0},   {0.6, 85.0, 0},  {2.0, 85.0, 0},  {6.3, 97.0, 0},
+                                         {20.0, 100.0, 0}};
+    const struct sg_curve_point flat[] = {{0.001, 5.0, 2},  {0.004, 30.0, 2}, {0.02, 30.0, 2},
+                                          {0.075, 61.0, 0}, {0.3, 55.0, 0},   {1.0, 85.0, 0},
+                                          {4.75, 85.0, 0},  {10.0, 90.0, 0}};
+    const struct {
+        const struct sg_curve_point *p;
+        size_t n;
+    } curves[] = {{dip, sizeof dip / sizeof dip[0]}, {flat, sizeof flat / sizeof flat[0]}};
+    static const char *const names[] = {"d10_mm", "d15_mm", "d30_mm", "d50_mm", "d60_mm", "d85_mm"};
+    static const double pcts[] = {10.0, 15.0, 30.0, 50.0, 60.0, 85.0};
+    for (size_t c = 0; c < 2; c++)
+        for (int m = 0; m < 2; m++)
+            for (int quiet = 0; quiet < 2; quiet++) {
+                struct sg_reduce_options opt = sg_reduce_options_default();
+                opt.values_only = quiet;
+                struct sg_result res;
+                sg_result_init(&res);
+                summarise(&res, curves[c].p, curves[c].n, m ? SG_INTERP_MONOTONE : SG_INTERP_LOGLINEAR, &opt);
+                for (size_t i = 0; i < 6; i++) {
+                    struct sg_error e;
+                    sg_error_clear(&e);
+                    double want = NAN;
+                    const enum sg_status st = sg_curve_diameter_at(&res.curve, pcts[i], &want, &e);
+                    const struct sg_quantity *q = qty(&res, names[i]);
+                    cr_assert_eq(q->determined, st == SG_OK, "curve %zu, method %d, quiet %d, %s", c, m, quiet,
+                                 names[i]);
+                    if (st == SG_OK)
+                        cr_assert(memcmp(&q->value, &want, sizeof want) == 0, "curve %zu, %s: %.17g, single %.17g",
+                                  c, names[i], q->value, want);
+                    else if (!quiet)
+                        cr_assert(strstr(q->note, e.msg) != NULL, "curve %zu, %s: note '%s' lacks '%s'", c,
+                                  names[i], q->note, e.msg);
+                }
+                if (c == 0) /* D10 and D15 not reached, the rest read on the dip's rules */
+                    cr_assert(!qty(&res, "d10_mm")->determined && !qty(&res, "d15_mm")->determined &&
+                              qty(&res, "d30_mm")->determined && qty(&res, "d85_mm")->determined);
+                sg_result_release(&res);
+            }
+}
+
 Test(summary, empty_curve_all_undetermined)
 {
     struct sg_result res;

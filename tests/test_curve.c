@@ -3,6 +3,8 @@
  * no-extrapolation rule and its two documented end exceptions. */
 #include <criterion/criterion.h>
 #include <math.h>
+#include <stdbool.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include <gsl/gsl_errno.h>
@@ -521,6 +523,193 @@ Test(curve, diameter_at_follows_the_scan_on_any_shape)
             }
         }
         sg_curve_release(&c);
+    }
+    gsl_rng_free(g);
+}
+
+/* A random curve for the sorted readers: n nodes (2-14) at increasing,
+ * unevenly spaced sizes; percents that rise, fall and stay level, on a
+ * 5 % grid (equal nodes and asked percents equal to a node are common) or
+ * continuous with repeated values (plateaus). Invented data. */
+static size_t random_curve(gsl_rng *g, int trial, struct sg_curve_point *pts)
+{
+    const size_t n = 2 + gsl_rng_uniform_int(g, 13);
+    const bool grid = trial % 2 == 0;
+    double lg = -3.0 + gsl_rng_uniform(g);
+    double pct = grid ? 5.0 * (double)gsl_rng_uniform_int(g, 5) : 30.0 * gsl_rng_uniform(g);
+    for (size_t i = 0; i < n; i++) {
+        pts[i] = (struct sg_curve_point){pow(10.0, lg), pct, (int)gsl_rng_uniform_int(g, 3)};
+        lg += 0.05 + 0.6 * gsl_rng_uniform(g);
+        const unsigned kind = (unsigned)gsl_rng_uniform_int(g, 6); /* 0 fall, 1 level, else rise */
+        const double step = grid ? 5.0 * (double)(1 + gsl_rng_uniform_int(g, 3)) : 25.0 * gsl_rng_uniform(g);
+        pct += kind == 0 ? -step : kind == 1 ? 0.0 : step;
+        pct = pct < 0.0 ? 0.0 : pct > 100.0 ? 100.0 : pct;
+    }
+    return n;
+}
+
+static int cmp_double(const void *a, const void *b)
+{
+    const double x = *(const double *)a, y = *(const double *)b;
+    return (x > y) - (x < y);
+}
+
+/* Asks the sorted reader for ps[0..m) and checks every answer against
+ * sg_curve_diameter_at: the same status, the same value bit for bit
+ * (NaN where it fails). */
+static void check_sorted_against_single(const struct sg_curve *c, const double *ps, size_t m, const char *what,
+                                        int trial)
+{
+    double d[64];
+    enum sg_status st[64];
+    cr_assert(m <= 64);
+    sg_curve_diameters_at_sorted(c, ps, m, d, st);
+    for (size_t i = 0; i < m; i++) {
+        double want = NAN;
+        const enum sg_status want_st = sg_curve_diameter_at(c, ps[i], &want, NULL);
+        cr_assert_eq(st[i], want_st, "%s, trial %d, p %.17g: status %d, single %d", what, trial, ps[i], (int)st[i],
+                     (int)want_st);
+        if (want_st == SG_OK)
+            cr_assert(memcmp(&d[i], &want, sizeof want) == 0, "%s, trial %d, p %.17g: %.17g, single %.17g", what,
+                      trial, ps[i], d[i], want);
+        else
+            cr_assert(isnan(d[i]), "%s, trial %d, p %.17g: %g where it fails", what, trial, ps[i], d[i]);
+    }
+}
+
+Test(curve, diameters_at_sorted_equal_the_single_reading)
+{
+    /* Random curves with falls and plateaus, both interpolations, read at
+     * increasing percents that include every node's percent, values just
+     * off them, unreachable ones (below 0, above 100, outside the curve's
+     * span) and random ones; then the same percents shuffled, which the
+     * sorted reader must answer alike. */
+    gsl_rng *g = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(g, 20261202);
+    for (int trial = 0; trial < 1200; trial++) {
+        struct sg_curve_point pts[14];
+        const size_t n = random_curve(g, trial, pts);
+        double ps[64];
+        size_t m = 0;
+        ps[m++] = -5.0;
+        ps[m++] = 0.0;
+        ps[m++] = 100.0;
+        ps[m++] = 105.0;
+        for (size_t i = 0; i < n; i++) {
+            ps[m++] = pts[i].percent_finer;
+            ps[m++] = nextafter(pts[i].percent_finer, INFINITY);
+            ps[m++] = nextafter(pts[i].percent_finer, -INFINITY);
+        }
+        while (m < 60)
+            ps[m++] = 110.0 * gsl_rng_uniform(g) - 5.0;
+        qsort(ps, m, sizeof ps[0], cmp_double);
+        for (int method = 0; method < 2; method++) {
+            const enum sg_interp how = method == 0 ? SG_INTERP_LOGLINEAR : SG_INTERP_MONOTONE;
+            struct sg_curve c;
+            sg_curve_init(&c);
+            if (sg_curve_build(&c, pts, n, how, NULL) != SG_OK) {
+                sg_curve_release(&c);
+                continue;
+            }
+            check_sorted_against_single(&c, ps, m, how == SG_INTERP_LOGLINEAR ? "log-linear" : "monotone",
+                                        trial);
+            double shuffled[64];
+            memcpy(shuffled, ps, m * sizeof ps[0]);
+            gsl_ran_shuffle(g, shuffled, m, sizeof shuffled[0]);
+            check_sorted_against_single(&c, shuffled, m, "shuffled", trial);
+            sg_curve_release(&c);
+        }
+    }
+    gsl_rng_free(g);
+}
+
+Test(curve, diameters_at_sorted_refusals)
+{
+    /* non-finite percents, an empty curve: the statuses of the single
+     * reading, NaN values; m == 0 touches nothing */
+    struct sg_curve c;
+    build_line(&c, SG_INTERP_LOGLINEAR, 0.002);
+    const double ps[] = {-INFINITY, NAN, 10.0, 50.0, INFINITY};
+    double d[5];
+    enum sg_status st[5];
+    sg_curve_diameters_at_sorted(&c, ps, 5, d, st);
+    const enum sg_status want[] = {SG_EINVAL, SG_EINVAL, SG_OK, SG_OK, SG_EINVAL};
+    for (size_t i = 0; i < 5; i++) {
+        cr_assert_eq(st[i], want[i], "p %g: status %d", ps[i], (int)st[i]);
+        cr_assert(want[i] == SG_OK ? isfinite(d[i]) : isnan(d[i]));
+    }
+    cr_assert(rel(d[2], line_d(10.0)) < 1e-13);
+    cr_assert(rel(d[3], 0.1) < 1e-13);
+    sg_curve_release(&c);
+    sg_curve_diameters_at_sorted(&c, ps + 2, 2, d, st); /* empty curve */
+    cr_assert_eq(st[0], SG_EDOM);
+    cr_assert_eq(st[1], SG_EDOM);
+    cr_assert(isnan(d[0]) && isnan(d[1]));
+    sg_curve_diameters_at_sorted(&c, ps, 0, NULL, NULL);
+}
+
+Test(curve, percent_at_sorted_equals_the_single_reading)
+{
+    /* The same random curves, read at increasing sizes: every node, sizes
+     * just off a node and off the ends by less than SG_CURVE_SAME_LOG10_D,
+     * sizes beyond both ends (the 0 % / 100 % end rules), random ones, and
+     * non-positive or non-finite sizes: the same percent bit for bit and
+     * the same status as sg_curve_percent_at_log10. */
+    gsl_rng *g = gsl_rng_alloc(gsl_rng_mt19937);
+    gsl_rng_set(g, 1202);
+    for (int trial = 0; trial < 1200; trial++) {
+        struct sg_curve_point pts[14];
+        const size_t n = random_curve(g, trial, pts);
+        if (trial % 4 == 1)
+            pts[n - 1].percent_finer = 100.0; /* end rules apply */
+        if (trial % 4 == 2)
+            pts[0].percent_finer = 0.0;
+        double xs[64];
+        size_t m = 0;
+        for (size_t i = 0; i < n; i++) {
+            const double x = log10(pts[i].diameter_mm);
+            xs[m++] = x;
+            xs[m++] = nextafter(x, INFINITY);
+            xs[m++] = x - 0.5e-12;
+            xs[m++] = x + 0.5e-12;
+        }
+        const double x_lo = log10(pts[0].diameter_mm), x_hi = log10(pts[n - 1].diameter_mm);
+        xs[m++] = x_lo - 0.1;
+        xs[m++] = x_hi + 0.1;
+        xs[m++] = x_lo - 2e-12;
+        xs[m++] = x_hi + 2e-12;
+        while (m < 60)
+            xs[m++] = x_lo - 0.2 + (x_hi - x_lo + 0.4) * gsl_rng_uniform(g);
+        qsort(xs, m, sizeof xs[0], cmp_double);
+        double ds[64];
+        for (size_t i = 0; i < m; i++)
+            ds[i] = pow(10.0, xs[i]);
+        ds[0] = trial % 3 == 0 ? 0.0 : trial % 3 == 1 ? -1.0 : (double)NAN; /* refused whatever its log10 */
+        ds[m - 1] = trial % 2 == 0 ? (double)INFINITY : ds[m - 1];
+        for (int method = 0; method < 2; method++) {
+            const enum sg_interp how = method == 0 ? SG_INTERP_LOGLINEAR : SG_INTERP_MONOTONE;
+            struct sg_curve c;
+            sg_curve_init(&c);
+            if (sg_curve_build(&c, pts, n, how, NULL) != SG_OK) {
+                sg_curve_release(&c);
+                continue;
+            }
+            double p[64];
+            enum sg_status st[64];
+            sg_curve_percent_at_sorted(&c, ds, xs, m, p, st);
+            for (size_t i = 0; i < m; i++) {
+                double want = NAN;
+                const enum sg_status want_st = sg_curve_percent_at_log10(&c, ds[i], xs[i], &want, NULL);
+                cr_assert_eq(st[i], want_st, "trial %d, method %d, log10 D %.17g: status %d, single %d", trial,
+                             method, xs[i], (int)st[i], (int)want_st);
+                if (want_st == SG_OK)
+                    cr_assert(memcmp(&p[i], &want, sizeof want) == 0, "trial %d, method %d, log10 D %.17g: %.17g, "
+                              "single %.17g", trial, method, xs[i], p[i], want);
+                else
+                    cr_assert(isnan(p[i]), "trial %d: %g where it fails", trial, p[i]);
+            }
+            sg_curve_release(&c);
+        }
     }
     gsl_rng_free(g);
 }

@@ -124,4 +124,15 @@ void sg_curve_percent_at_sorted(const struct sg_curve *c, const double *d_mm, co
 enum sg_status sg_curve_diameter_at(const struct sg_curve *c, double percent_finer, double *d_mm,
                                     struct sg_error *err);
 
+/* Diameters at m percents finer, given in increasing order, in one walk
+ * along the curve (the D-values of a summary, asked for once per Monte
+ * Carlo draw): d_mm[i] and st[i] are what sg_curve_diameter_at would give
+ * for percent_finer[i] (d_mm NaN where st is not SG_OK), without messages
+ * (ask that function for the message of a percent that failed). Percents
+ * out of order are answered the same, only walking back. The monotone
+ * method allocates one root finder for the call; SG_ENOMEM in st[i] when
+ * it cannot. */
+void sg_curve_diameters_at_sorted(const struct sg_curve *c, const double *percent_finer, size_t m, double *d_mm,
+                                  enum sg_status *st);
+
 #endif
