@@ -255,6 +255,9 @@ struct plan {
     struct follow {
         size_t q;          /* nominal index */
         size_t j;          /* where a draw's result is expected to hold it */
+        /* the nominal row's name_src when its name is still that static
+         * name, else NULL (then only names are compared) */
+        const struct sg_static_qname *src;
         enum qkind kind;
         size_t slot;       /* value slot (Q_NUMERIC, Q_UNDET) */
         size_t cat;        /* class table (Q_CATEGORICAL, Q_UNDET) */
@@ -384,10 +387,16 @@ static void perturb(const struct plan *p, struct sg_record *r, struct sg_constan
 /* The draw's quantity that corresponds to followed quantity f. */
 static const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs, const struct follow *f)
 {
-    /* names as whole arrays first (the result zero-pads them, as calloc did
-     * p->names): equal arrays are equal names; else by name */
-    if (f->j < rs->n_quantities && memcmp(rs->quantities[f->j].name, p->names[f->q], sizeof p->names[f->q]) == 0)
-        return &rs->quantities[f->j];
+    if (f->j < rs->n_quantities) {
+        const struct sg_quantity *q = &rs->quantities[f->j];
+        /* the same static name array (result.h: name_src) is the same name */
+        if (q->name_src == f->src && f->src != NULL)
+            return q;
+        /* names as whole arrays (the result zero-pads them, as calloc did
+         * p->names): equal arrays are equal names */
+        if (memcmp(q->name, p->names[f->q], sizeof p->names[f->q]) == 0)
+            return q;
+    }
     return sg_result_quantity(rs, p->names[f->q]);
 }
 
@@ -854,6 +863,14 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
         struct follow *f = &p.follow[p.n_follow++];
         f->q = i;
         f->j = (size_t)(dq - layout.quantities);
+        if (q->name_src != NULL) {
+            /* the static name as a row holds it (cut to SG_QNAME_MAX - 1) */
+            char src_name[SG_QNAME_MAX];
+            memcpy(src_name, q->name_src->s, sizeof src_name);
+            src_name[SG_QNAME_MAX - 1] = '\0';
+            if (memcmp(src_name, p.names[i], sizeof src_name) == 0)
+                f->src = q->name_src;
+        }
         if (!q->determined) {
             f->kind = Q_UNDET;
             f->cat = p.n_cat++;
