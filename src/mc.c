@@ -231,6 +231,11 @@ static void cat_add(struct cat_table *t, const char *text, size_t count)
 
 /* ---- the run ------------------------------------------------------------- */
 
+/* An address no row's name_src holds (no row is written from it): the
+ * src of a followed quantity without a static name, so that match() needs
+ * no test for NULL. */
+static const struct sg_static_qname NOT_A_ROW_NAME = {""};
+
 /* How a nominal quantity is followed through the draws: numeric (u and
  * interval), categorical (class counts), or not determined in the nominal
  * result (only how often, and as what, the draws determine it). */
@@ -256,7 +261,7 @@ struct plan {
         size_t q;          /* nominal index */
         size_t j;          /* where a draw's result is expected to hold it */
         /* the nominal row's name_src when its name is still that static
-         * name, else NULL (then only names are compared) */
+         * name, else &NOT_A_ROW_NAME (then only names are compared) */
         const struct sg_static_qname *src;
         enum qkind kind;
         size_t slot;       /* value slot (Q_NUMERIC, Q_UNDET) */
@@ -388,20 +393,29 @@ static void perturb(const struct plan *p, struct sg_record *r, struct sg_constan
     }
 }
 
-/* The draw's quantity that corresponds to followed quantity f. */
-static const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs, const struct follow *f)
+/* match() when the expected row is not the same static name: by name. */
+static const struct sg_quantity *match_by_name(const struct plan *p, const struct sg_result *rs,
+                                               const struct follow *f)
 {
     if (f->j < rs->n_quantities) {
-        const struct sg_quantity *q = &rs->quantities[f->j];
-        /* the same static name array (result.h: name_src) is the same name */
-        if (q->name_src == f->src && f->src != NULL)
-            return q;
         /* names as whole arrays (the result zero-pads them, as calloc did
          * p->names): equal arrays are equal names */
+        const struct sg_quantity *q = &rs->quantities[f->j];
         if (memcmp(q->name, p->names[f->q], sizeof p->names[f->q]) == 0)
             return q;
     }
     return sg_result_quantity(rs, p->names[f->q]);
+}
+
+/* The draw's quantity that corresponds to followed quantity f, rows and
+ * n_rows being the draw's quantities (read once per draw by the caller). */
+static inline const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs,
+                                              const struct sg_quantity *rows, size_t n_rows, const struct follow *f)
+{
+    /* the same static name array (result.h: name_src) is the same name */
+    if (f->j < n_rows && rows[f->j].name_src == f->src) /* f->src never NULL */
+        return &rows[f->j];
+    return match_by_name(p, rs, f);
 }
 
 /* Adds one draw's value x of numeric slot s (finite) to the block's sums
@@ -445,8 +459,10 @@ static inline void take_point(const struct plan *p, struct moments *bs, size_t s
 static bool extract(const struct plan *p, const struct sg_result *rs, struct worker *w, struct moments *bs)
 {
     const struct follow *f = p->draw_follow, *const num_end = f + p->n_draw_num, *const end = f + p->n_follow;
+    const struct sg_quantity *const rows = rs->quantities;
+    const size_t n_rows = rs->n_quantities;
     for (; f < num_end; f++) {
-        const struct sg_quantity *q = match(p, rs, f);
+        const struct sg_quantity *q = match(p, rs, rows, n_rows, f);
         if (q != NULL && q->determined && !q->is_text && isfinite(q->value))
             take_num(p, w, bs, f->slot, q->value);
         else
@@ -454,7 +470,7 @@ static bool extract(const struct plan *p, const struct sg_result *rs, struct wor
     }
     struct cat_table *cats = w->cats;
     for (; f < end; f++) {
-        const struct sg_quantity *q = match(p, rs, f);
+        const struct sg_quantity *q = match(p, rs, rows, n_rows, f);
         const bool det = q != NULL && q->determined;
         if (f->kind == Q_CATEGORICAL) {
             cat_add(&cats[f->cat], det ? q->text : "", 1);
@@ -896,6 +912,7 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
         struct follow *f = &p.follow[p.n_follow++];
         f->q = i;
         f->j = (size_t)(dq - layout.quantities);
+        f->src = &NOT_A_ROW_NAME;
         if (q->name_src != NULL) {
             /* the static name as a row holds it (cut to SG_QNAME_MAX - 1) */
             char src_name[SG_QNAME_MAX];
