@@ -485,8 +485,15 @@ static bool extract(const struct plan *p, const struct sg_result *rs, struct wor
     if (rs->n_points != p->n_pts)
         return false;
     for (size_t i = 0; i < p->n_pts; i++) {
-        take_point(p, bs, p->pts0 + 2 * i, rs->points[i].percent_finer);
-        take_point(p, bs, p->pts0 + 2 * i + 1, rs->points[i].diameter_mm);
+        const size_t sp = p->pts0 + 2 * i, sd = sp + 1;
+        take_point(p, bs, sp, rs->points[i].percent_finer);
+        /* a diameter equal to the nominal one (every sieve's aperture) adds
+         * a zero to sums that start at +0 and so are never -0 (a sum is -0
+         * only when both terms are): it changes no bit, and it is counted
+         * as a value (only misses are counted) */
+        const double d = rs->points[i].diameter_mm;
+        if (d != p->shift[sd])
+            take_point(p, bs, sd, d);
     }
     return true;
 }
