@@ -1045,12 +1045,32 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
         {{"passing_0_425_mm_pct"}, B_ZERO, B_0_425, false, "percent passing 0.425 mm (No. 40)"},
         {{"passing_0_075_mm_pct"}, B_ZERO, B_0_075, false, "percent passing 0.075 mm (No. 200)"},
     };
-    for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++) {
-        if ((st = add_fraction_on(&x, &fr[i].name, fr[i].lower, fr[i].upper, fr[i].of_fine_earth ? &p2 : NULL,
-                                  fr[i].what)) != SG_OK)
-            return st;
-        if (fr[i].lower == B_ZERO && fr[i].upper == B_0_02) /* finer_0_02_mm_pct */
-            keep(&x, SG_KEY_FINER_0_02_MM_PCT, res->n_quantities - 1);
+    if (x.quiet) {
+        /* the Monte Carlo draws' path: add_fraction_on's quiet rows in one
+         * loop, without its test of quiet per row */
+        const double basis_pct = p2.ok && p2.value > 0.0 ? p2.value : (double)NAN;
+        for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++) {
+            double v = x.pv[fr[i].upper] - x.pv[fr[i].lower]; /* NaN unless both are determined */
+            if (fr[i].of_fine_earth)
+                v = 100.0 * v / basis_pct;
+            struct sg_quantity *q = sg_result_new_quantity_static(res, &fr[i].name, UNIT_PCT, NULL);
+            if (q == NULL)
+                return nomem(&x);
+            if (isfinite(v)) { /* else as written: not determined, value NaN */
+                q->determined = true;
+                q->value = v;
+            }
+            if (fr[i].lower == B_ZERO && fr[i].upper == B_0_02) /* finer_0_02_mm_pct */
+                keep(&x, SG_KEY_FINER_0_02_MM_PCT, res->n_quantities - 1);
+        }
+    } else {
+        for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++) {
+            if ((st = add_fraction_on(&x, &fr[i].name, fr[i].lower, fr[i].upper, fr[i].of_fine_earth ? &p2 : NULL,
+                                      fr[i].what)) != SG_OK)
+                return st;
+            if (fr[i].lower == B_ZERO && fr[i].upper == B_0_02) /* finer_0_02_mm_pct */
+                keep(&x, SG_KEY_FINER_0_02_MM_PCT, res->n_quantities - 1);
+        }
     }
 
     if ((st = add_uscs(&x, cu, cc)) != SG_OK || (st = add_iso_grading(&x, cu, cc)) != SG_OK ||
