@@ -295,7 +295,8 @@ static enum sg_status nomem(struct ctx *x)
 }
 
 /* Names and units are whole arrays, zero after the text (table entries,
- * or SG_QNAME("...") for a literal), copied by the result as one block. */
+ * static names or, for names built at run time, buffers),
+ * copied by the result as one block. */
 static const char UNIT_MM[SG_QUNIT_MAX] = "mm", UNIT_PCT[SG_QUNIT_MAX] = "%", UNIT_NONE[SG_QUNIT_MAX] = "";
 
 static enum sg_status add_value(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], double v,
@@ -329,14 +330,61 @@ static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], co
     return sg_result_new_quantity(x->res, name, unit, note) != NULL ? SG_OK : nomem(x);
 }
 
-static enum sg_status add_text(struct ctx *x, const char name[SG_QNAME_MAX], const char *text, const char *note)
+/* The same, and a text row, for rows named by static names (result.h: struct
+ * sg_static_qname, whose address the row keeps). */
+static enum sg_status add_value_s(struct ctx *x, const struct sg_static_qname *name, const char unit[SG_QUNIT_MAX],
+                                  double v, const char *note)
 {
-    struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_NONE, x->quiet ? "" : note);
+    struct sg_quantity *q = sg_result_new_quantity_static(x->res, name, unit, x->quiet ? "" : note);
+    if (q == NULL)
+        return nomem(x);
+    sg_quantity_set_value(q, v);
+    return SG_OK;
+}
+
+static enum sg_status add_undet_s(struct ctx *x, const struct sg_static_qname *name, const char unit[SG_QUNIT_MAX],
+                                  const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 4, 5)))
+#endif
+    ;
+
+static enum sg_status add_undet_s(struct ctx *x, const struct sg_static_qname *name, const char unit[SG_QUNIT_MAX],
+                                  const char *fmt, ...)
+{
+    char note[SG_QNOTE_MAX];
+    note[0] = '\0';
+    if (!x->quiet) {
+        va_list ap;
+        va_start(ap, fmt);
+        (void)vsnprintf(note, sizeof note, fmt, ap);
+        va_end(ap);
+    }
+    return sg_result_new_quantity_static(x->res, name, unit, note) != NULL ? SG_OK : nomem(x);
+}
+
+static enum sg_status add_text_s(struct ctx *x, const struct sg_static_qname *name, const char *text,
+                                 const char *note)
+{
+    struct sg_quantity *q = sg_result_new_quantity_static(x->res, name, UNIT_NONE, x->quiet ? "" : note);
     if (q == NULL)
         return nomem(x);
     sg_quantity_set_text(q, text);
     return SG_OK;
 }
+
+/* Static names of the rows below (result.h: SG_STATIC_QNAME). */
+SG_STATIC_QNAME(N_CU, "cu");
+SG_STATIC_QNAME(N_CC, "cc");
+SG_STATIC_QNAME(N_USDA_TEXTURE, "usda_texture");
+SG_STATIC_QNAME(N_USCS_GRADING, "uscs_grading");
+SG_STATIC_QNAME(N_USCS_GROUP, "uscs_group");
+SG_STATIC_QNAME(N_ISO_GRADING, "iso_grading");
+SG_STATIC_QNAME(N_CLAY_PCT, "clay_pct");
+SG_STATIC_QNAME(N_SILT_PCT, "silt_pct");
+SG_STATIC_QNAME(N_SAND_PCT, "sand_pct");
+SG_STATIC_QNAME(N_GRAVEL_PCT, "gravel_pct");
+SG_STATIC_QNAME(N_FINES_PCT, "fines_pct");
 
 /* Copies an error message (both buffers MSG_MAX bytes). */
 static void copy_msg(char *dst, const char *src)
@@ -508,19 +556,19 @@ static struct reading fraction(const struct ctx *x, enum bound lower, enum bound
 }
 
 /* add_fraction_on with the note, and the reason when not determined. */
-static enum sg_status add_fraction_noted(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower,
+static enum sg_status add_fraction_noted(struct ctx *x, const struct sg_static_qname *name, enum bound lower,
                                          enum bound upper, const struct reading *basis, const char *what)
 {
     const struct reading r = fraction(x, lower, upper);
     if (!r.ok)
-        return add_undet(x, name, UNIT_PCT, "not determined: %s", r.why);
+        return add_undet_s(x, name, UNIT_PCT, "not determined: %s", r.why);
     double v = r.value;
     if (basis != NULL) {
         if (!basis->ok)
-            return add_undet(x, name, UNIT_PCT, "not determined: the basis (percent finer than 2 mm) is not: %s",
+            return add_undet_s(x, name, UNIT_PCT, "not determined: the basis (percent finer than 2 mm) is not: %s",
                              basis->why);
         if (!(basis->value > 0.0))
-            return add_undet(x, name, UNIT_PCT, "not determined: no material finer than 2 mm (%g %%)",
+            return add_undet_s(x, name, UNIT_PCT, "not determined: no material finer than 2 mm (%g %%)",
                              basis->value);
         v = 100.0 * r.value / basis->value;
     }
@@ -528,9 +576,9 @@ static enum sg_status add_fraction_noted(struct ctx *x, const char name[SG_QNAME
         char note[SG_QNOTE_MAX];
         join(note, sizeof note, what, "; negative: the curve rises with falling size in this range (see the QC flags)",
              (const char *)NULL);
-        return add_value(x, name, UNIT_PCT, v, note);
+        return add_value_s(x, name, UNIT_PCT, v, note);
     }
-    return add_value(x, name, UNIT_PCT, v, what);
+    return add_value_s(x, name, UNIT_PCT, v, what);
 }
 
 /* Adds a fraction of the whole sample (or, with basis > 0, of the part
@@ -538,7 +586,7 @@ static enum sg_status add_fraction_noted(struct ctx *x, const char name[SG_QNAME
  * Quiet: the same rows without the notes' reasons, the Monte Carlo draws'
  * path; inline, so that the 38 fraction rows a draw adds are written
  * within the loops over the tables, without a call each. */
-static inline enum sg_status add_fraction_on(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower,
+static inline enum sg_status add_fraction_on(struct ctx *x, const struct sg_static_qname *name, enum bound lower,
                                              enum bound upper, const struct reading *basis, const char *what)
 {
     if (!x->quiet)
@@ -546,14 +594,14 @@ static inline enum sg_status add_fraction_on(struct ctx *x, const char name[SG_Q
     double v = x->pv[upper] - x->pv[lower]; /* NaN unless both are determined */
     if (basis != NULL)
         v = basis->ok && basis->value > 0.0 ? 100.0 * v / basis->value : (double)NAN;
-    struct sg_quantity *q = sg_result_new_quantity(x->res, name, UNIT_PCT, NULL);
+    struct sg_quantity *q = sg_result_new_quantity_static(x->res, name, UNIT_PCT, NULL);
     if (q == NULL)
         return nomem(x);
     sg_quantity_set_value(q, isfinite(v) ? v : (double)NAN);
     return SG_OK;
 }
 
-static enum sg_status add_fraction(struct ctx *x, const char name[SG_QNAME_MAX], enum bound lower, enum bound upper,
+static enum sg_status add_fraction(struct ctx *x, const struct sg_static_qname *name, enum bound lower, enum bound upper,
                                    const char *what)
 {
     return add_fraction_on(x, name, lower, upper, NULL, what);
@@ -576,17 +624,17 @@ static enum sg_status add_cu_cc(struct ctx *x, const struct reading *d10, const 
     }
     enum sg_status st;
     if (!d10->ok || !d60->ok)
-        st = add_undet(x, SG_QNAME("cu"), UNIT_NONE, "not determined: %s not determined (Cu = D60 / D10)", missing);
+        st = add_undet_s(x, &N_CU, UNIT_NONE, "not determined: %s not determined (Cu = D60 / D10)", missing);
     else {
         *cu = d60->value / d10->value;
-        st = add_value(x, SG_QNAME("cu"), UNIT_NONE, *cu, "coefficient of uniformity D60 / D10");
+        st = add_value_s(x, &N_CU, UNIT_NONE, *cu, "coefficient of uniformity D60 / D10");
     }
     if (st != SG_OK)
         return st;
     if (!d10->ok || !d30->ok || !d60->ok)
-        return add_undet(x, SG_QNAME("cc"), UNIT_NONE, "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
+        return add_undet_s(x, &N_CC, UNIT_NONE, "not determined: %s not determined (Cc = D30^2 / (D10 D60))", missing);
     *cc = d30->value * d30->value / (d10->value * d60->value);
-    return add_value(x, SG_QNAME("cc"), UNIT_NONE, *cc, "coefficient of curvature D30^2 / (D10 D60)");
+    return add_value_s(x, &N_CC, UNIT_NONE, *cc, "coefficient of curvature D30^2 / (D10 D60)");
 }
 
 static enum sg_status add_usda(struct ctx *x, struct reading *p2)
@@ -594,7 +642,7 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
     *p2 = at(x, B_2);
     const struct reading p005 = at(x, B_0_05), p0002 = at(x, B_0_002);
     enum sg_status st;
-    static const char names[3][SG_QNAME_MAX] = {"usda_sand_pct", "usda_silt_pct", "usda_clay_pct"};
+    static const struct sg_static_qname names[3] = {{"usda_sand_pct"}, {"usda_silt_pct"}, {"usda_clay_pct"}};
     const char *what[3] = {"USDA sand 0.05-2 mm, % of the fraction finer than 2 mm",
                            "USDA silt 0.002-0.05 mm, % of the fraction finer than 2 mm",
                            "USDA clay < 0.002 mm, % of the fraction finer than 2 mm"};
@@ -609,7 +657,7 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
             all = false;
             if (!x->quiet)
                 join(why, sizeof why, bad->why, (const char *)NULL);
-            if ((st = add_undet(x, names[i], UNIT_PCT, "not determined: %s", bad->why)) != SG_OK)
+            if ((st = add_undet_s(x, &names[i], UNIT_PCT, "not determined: %s", bad->why)) != SG_OK)
                 return st;
             continue;
         }
@@ -617,19 +665,19 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
             all = false;
             if (!x->quiet)
                 fmt_into(why, sizeof why, "no material finer than 2 mm (%g %%)", p2->value);
-            if ((st = add_undet(x, names[i], UNIT_PCT, "not determined: %s", why)) != SG_OK)
+            if ((st = add_undet_s(x, &names[i], UNIT_PCT, "not determined: %s", why)) != SG_OK)
                 return st;
             continue;
         }
         v[i] = 100.0 * (upper[i]->value - (lower[i] ? lower[i]->value : 0.0)) / p2->value;
-        if ((st = add_value(x, names[i], UNIT_PCT, v[i], what[i])) != SG_OK)
+        if ((st = add_value_s(x, &names[i], UNIT_PCT, v[i], what[i])) != SG_OK)
             return st;
     }
     if (!all)
-        return add_undet(x, SG_QNAME("usda_texture"), UNIT_NONE, "not determined: %s", why);
+        return add_undet_s(x, &N_USDA_TEXTURE, UNIT_NONE, "not determined: %s", why);
     const char *cls = sg_classify_usda_texture(v[0], v[1], v[2]);
     if (cls == NULL)
-        return add_undet(x, SG_QNAME("usda_texture"), UNIT_NONE,
+        return add_undet_s(x, &N_USDA_TEXTURE, UNIT_NONE,
                          "not determined: a separate is negative (sand %.1f, silt %.1f, clay %.1f %%; the curve "
                          "rises with falling size, see the QC flags)",
                          v[0], v[1], v[2]);
@@ -642,7 +690,7 @@ static enum sg_status add_usda(struct ctx *x, struct reading *p2)
                  100.0 - p2->value);
     else if (!x->quiet)
         join(note, sizeof note, "USDA texture triangle on the fraction finer than 2 mm", (const char *)NULL);
-    return add_text(x, SG_QNAME("usda_texture"), cls, note);
+    return add_text_s(x, &N_USDA_TEXTURE, cls, note);
 }
 
 static enum sg_status add_extra_dx(struct ctx *x, const struct sg_reduce_options *opt)
@@ -678,15 +726,15 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     enum sg_status st;
     const struct reading *bad = !p75.ok ? &p75 : !p475.ok ? &p475 : !p0075.ok ? &p0075 : NULL;
     if (bad != NULL) {
-        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE, "not determined (needs P at 75, 4.75, 0.075 mm): %s",
+        if ((st = add_undet_s(x, &N_USCS_GRADING, UNIT_NONE, "not determined (needs P at 75, 4.75, 0.075 mm): %s",
                             bad->why)) != SG_OK)
             return st;
-        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined (needs P at 75, 4.75, 0.075 mm): %s", bad->why);
+        return add_undet_s(x, &N_USCS_GROUP, UNIT_NONE, "not determined (needs P at 75, 4.75, 0.075 mm): %s", bad->why);
     }
     if (!(p75.value > 0.0)) {
-        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE, "not determined: no material finer than 75 mm")) != SG_OK)
+        if ((st = add_undet_s(x, &N_USCS_GRADING, UNIT_NONE, "not determined: no material finer than 75 mm")) != SG_OK)
             return st;
-        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined: no material finer than 75 mm");
+        return add_undet_s(x, &N_USCS_GROUP, UNIT_NONE, "not determined: no material finer than 75 mm");
     }
     const double fines = 100.0 * p0075.value / p75.value;
     const double gravel = 100.0 * (p75.value - p475.value) / p75.value;
@@ -707,9 +755,9 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      "ASTM D2487 fine-grained soil (fines %.1f %% >= 50 %%): grading terms apply to "
                      "coarse-grained soils",
                      fines);
-        if ((st = add_text(x, SG_QNAME("uscs_grading"), "not applicable, fine-grained", note)) != SG_OK)
+        if ((st = add_text_s(x, &N_USCS_GRADING, "not applicable, fine-grained", note)) != SG_OK)
             return st;
-        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE,
+        return add_undet_s(x, &N_USCS_GROUP, UNIT_NONE,
                          "fine-grained soil (fines %.1f %% >= 50 %%): ML, CL, MH, CH, OL or OH needs the "
                          "Atterberg limits (and organic content)%s",
                          fines, x->limits_given);
@@ -720,30 +768,30 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                      "ASTM D2487: with fines over 12 %% (%s) the soil is named by the plasticity of its "
                      "fines, not by its grading",
                      basis);
-        if ((st = add_text(x, SG_QNAME("uscs_grading"), "not applicable, fines over 12 %", note)) != SG_OK)
+        if ((st = add_text_s(x, &N_USCS_GRADING, "not applicable, fines over 12 %", note)) != SG_OK)
             return st;
-        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "%s with fines over 12 %% (%s): %s needs the Atterberg limits%s",
+        return add_undet_s(x, &N_USCS_GROUP, UNIT_NONE, "%s with fines over 12 %% (%s): %s needs the Atterberg limits%s",
                          kind, basis, is_gravel ? "GM, GC or GC-GM" : "SM, SC or SC-SM", x->limits_given);
     }
     if (!isfinite(cu) || !isfinite(cc)) {
-        if ((st = add_undet(x, SG_QNAME("uscs_grading"), UNIT_NONE,
+        if ((st = add_undet_s(x, &N_USCS_GRADING, UNIT_NONE,
                             "not determined: Cu and Cc are needed (D10, D30 and D60; %s)", basis)) != SG_OK)
             return st;
-        return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE, "not determined: Cu and Cc are needed (%s)", basis);
+        return add_undet_s(x, &N_USCS_GROUP, UNIT_NONE, "not determined: Cu and Cc are needed (%s)", basis);
     }
     const bool well = sg_classify_uscs_well_graded(is_gravel, cu, cc);
     if (!x->quiet)
         fmt_into(note, sizeof note, "ASTM D2487 %s (%s): %s needs Cu >= %g and 1 <= Cc <= 3; Cu %.2f, Cc %.2f",
                  kind, basis, is_gravel ? "GW" : "SW", is_gravel ? USCS_GW_CU_MIN : USCS_SW_CU_MIN, cu, cc);
-    if ((st = add_text(x, SG_QNAME("uscs_grading"), well ? "well graded" : "poorly graded", note)) != SG_OK)
+    if ((st = add_text_s(x, &N_USCS_GRADING, well ? "well graded" : "poorly graded", note)) != SG_OK)
         return st;
     const char *sym = is_gravel ? (well ? "GW" : "GP") : (well ? "SW" : "SP");
     if (fines < USCS_CLEAN_MAX_PCT) {
         if (!x->quiet)
             fmt_into(note, sizeof note, "ASTM D2487 coarse-grained, fines %.1f %% < 5 %% (%s)", fines, basis);
-        return add_text(x, SG_QNAME("uscs_group"), sym, note);
+        return add_text_s(x, &N_USCS_GROUP, sym, note);
     }
-    return add_undet(x, SG_QNAME("uscs_group"), UNIT_NONE,
+    return add_undet_s(x, &N_USCS_GROUP, UNIT_NONE,
                      "dual symbol %s-%cM or %s-%cC (fines %.1f %%, 5-12 %%): the second part needs the "
                      "Atterberg limits of the fines%s",
                      sym, is_gravel ? 'G' : 'S', sym, is_gravel ? 'G' : 'S', fines, x->limits_given);
@@ -752,10 +800,10 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
 static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
 {
     if (!isfinite(cu) || !isfinite(cc))
-        return add_undet(x, SG_QNAME("iso_grading"), UNIT_NONE, "not determined: Cu and Cc are needed (D10, D30 and D60)");
+        return add_undet_s(x, &N_ISO_GRADING, UNIT_NONE, "not determined: Cu and Cc are needed (D10, D30 and D60)");
     const char *term = sg_classify_iso_grading(cu, cc);
     if (term == NULL)
-        return add_undet(x, SG_QNAME("iso_grading"), UNIT_NONE,
+        return add_undet_s(x, &N_ISO_GRADING, UNIT_NONE,
                          "no ISO 14688-2 term fits Cu %.2f, Cc %.2f (multi-graded needs Cu > 15 and 1 < Cc < 3; "
                          "gap-graded Cc < 0.5)",
                          cu, cc);
@@ -766,7 +814,7 @@ static enum sg_status add_iso_grading(struct ctx *x, double cu, double cc)
                  "ISO 14688-2 from Cu %.2f and Cc %.2f (limits from memory: multi Cu > 15 and 1 < Cc < 3, "
                  "medium 6-15, even < 6, gap Cc < 0.5)",
                  cu, cc);
-    return add_text(x, SG_QNAME("iso_grading"), term, note);
+    return add_text_s(x, &N_ISO_GRADING, term, note);
 }
 
 /* ---- junction gap ------------------------------------------------------ */
@@ -844,7 +892,7 @@ static void around_add(struct around *a, double a_mm, const struct sed_point *s)
 static enum sg_status add_junction_gap(struct ctx *x)
 {
     const struct sg_result *res = x->res;
-    static const char name[SG_QNAME_MAX] = "junction_gap_pct";
+    SG_STATIC_QNAME(name, "junction_gap_pct");
     double a_mm = INFINITY, p_sieve = NAN;
     bool a_from_sieve = false;
     /* each point tested for use once: sieves here, sedimentation below */
@@ -861,7 +909,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
         }
     }
     if (!isfinite(a_mm))
-        return add_undet(x, name, UNIT_PCT, "not determined: no sieve points");
+        return add_undet_s(x, &name, UNIT_PCT, "not determined: no sieve points");
 
     struct around ar;
     memset(&ar, 0, sizeof ar);
@@ -873,7 +921,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
         }
     }
     if (!ar.has_lo1 && !ar.has_hi1) /* the first point sets one of them */
-        return add_undet(x, name, UNIT_PCT, "not determined: no sedimentation points");
+        return add_undet_s(x, &name, UNIT_PCT, "not determined: no sedimentation points");
     double p_sed = NAN;
     char how[160];
     how[0] = '\0';
@@ -891,7 +939,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
         const bool all_finer = !ar.has_hi1; /* the two coarsest; else the two finest */
         const struct sed_point s0 = all_finer ? ar.lo1 : ar.hi1, s1 = all_finer ? ar.lo2 : ar.hi2;
         if (!(all_finer ? ar.has_lo2 : ar.has_hi2))
-            return add_undet(x, name, UNIT_PCT,
+            return add_undet_s(x, &name, UNIT_PCT,
                              "not determined: sedimentation points at one size only (%g mm), none at the finest "
                              "sieve %g mm",
                              s0.d_mm, a_mm);
@@ -907,7 +955,7 @@ static enum sg_status add_junction_gap(struct ctx *x)
     if (!x->quiet)
         fmt_into(note, sizeof note, "%s %g mm passing %.2f %% minus sedimentation %.2f %% at that size, %s",
                  a_from_sieve ? "sieve" : "fine sieve", a_mm, p_sieve, p_sed, how);
-    return add_value(x, name, UNIT_PCT, p_sieve - p_sed, note);
+    return add_value_s(x, &name, UNIT_PCT, p_sieve - p_sed, note);
 }
 
 /* ---- entry point ------------------------------------------------------- */
@@ -977,11 +1025,11 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     keep_reading(&x, SG_KEY_P_0_075_MM_PCT, B_0_075);
     struct reading p2;
     const size_t clay_row = res->n_quantities;
-    if ((st = add_fraction(&x, SG_QNAME("clay_pct"), B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
-        (st = add_fraction(&x, SG_QNAME("silt_pct"), B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
-        (st = add_fraction(&x, SG_QNAME("sand_pct"), B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
-        (st = add_fraction(&x, SG_QNAME("gravel_pct"), B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
-        (st = add_fraction(&x, SG_QNAME("fines_pct"), B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
+    if ((st = add_fraction(&x, &N_CLAY_PCT, B_ZERO, B_0_002, "ISO 14688-1 clay, finer than 0.002 mm")) ||
+        (st = add_fraction(&x, &N_SILT_PCT, B_0_002, B_0_063, "ISO 14688-1 silt, 0.002-0.063 mm")) ||
+        (st = add_fraction(&x, &N_SAND_PCT, B_0_063, B_2, "ISO 14688-1 sand, 0.063-2 mm")) ||
+        (st = add_fraction(&x, &N_GRAVEL_PCT, B_2, B_63, "ISO 14688-1 gravel, 2-63 mm")) ||
+        (st = add_fraction(&x, &N_FINES_PCT, B_ZERO, B_0_075, "percent finer than 0.075 mm (No. 200)")) ||
         (st = add_usda(&x, &p2)))
         return st;
     keep(&x, SG_KEY_CLAY_PCT, clay_row);
@@ -990,55 +1038,75 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
         return st;
 
     static const struct {
-        char name[SG_QNAME_MAX];
+        struct sg_static_qname name; /* static: the rows keep its address */
         enum bound lower, upper;
         bool of_fine_earth; /* USDA separates: % of the fraction finer than 2 mm */
         const char *what;
     } fr[] = {
-        {"cobbles_pct", B_63, B_200, false, "ISO 14688-1 cobbles, 63-200 mm"},
-        {"iso_fine_silt_pct", B_0_002, B_0_0063, false, "ISO 14688-1 fine silt, 0.002-0.0063 mm"},
-        {"iso_medium_silt_pct", B_0_0063, B_0_02, false, "ISO 14688-1 medium silt, 0.0063-0.02 mm"},
-        {"iso_coarse_silt_pct", B_0_02, B_0_063, false, "ISO 14688-1 coarse silt, 0.02-0.063 mm"},
-        {"iso_fine_sand_pct", B_0_063, B_0_2, false, "ISO 14688-1 fine sand, 0.063-0.2 mm"},
-        {"iso_medium_sand_pct", B_0_2, B_0_63, false, "ISO 14688-1 medium sand, 0.2-0.63 mm"},
-        {"iso_coarse_sand_pct", B_0_63, B_2, false, "ISO 14688-1 coarse sand, 0.63-2 mm"},
-        {"iso_fine_gravel_pct", B_2, B_6_3, false, "ISO 14688-1 fine gravel, 2-6.3 mm"},
-        {"iso_medium_gravel_pct", B_6_3, B_20, false, "ISO 14688-1 medium gravel, 6.3-20 mm"},
-        {"iso_coarse_gravel_pct", B_20, B_63, false, "ISO 14688-1 coarse gravel, 20-63 mm"},
-        {"uscs_cobbles_pct", B_75, B_300, false, "ASTM D2487 cobbles, 75-300 mm"},
-        {"uscs_gravel_pct", B_4_75, B_75, false, "ASTM D2487 gravel, 4.75-75 mm"},
-        {"uscs_coarse_gravel_pct", B_19, B_75, false, "ASTM D2487 coarse gravel, 19-75 mm"},
-        {"uscs_fine_gravel_pct", B_4_75, B_19, false, "ASTM D2487 fine gravel, 4.75-19 mm"},
-        {"uscs_sand_pct", B_0_075, B_4_75, false, "ASTM D2487 sand, 0.075-4.75 mm"},
-        {"uscs_coarse_sand_pct", B_2, B_4_75, false, "ASTM D2487 coarse sand, 2.00-4.75 mm"},
-        {"uscs_medium_sand_pct", B_0_425, B_2, false, "ASTM D2487 medium sand, 0.425-2.00 mm"},
-        {"uscs_fine_sand_pct", B_0_075, B_0_425, false, "ASTM D2487 fine sand, 0.075-0.425 mm"},
-        {"uscs_fines_pct", B_ZERO, B_0_075, false, "ASTM D2487 fines (silt and clay), finer than 0.075 mm"},
-        {"aashto_gravel_pct", B_2, B_75, false, "AASHTO M 145 gravel, 2.00-75 mm"},
-        {"aashto_coarse_sand_pct", B_0_425, B_2, false, "AASHTO M 145 coarse sand, 0.425-2.00 mm"},
-        {"aashto_fine_sand_pct", B_0_075, B_0_425, false, "AASHTO M 145 fine sand, 0.075-0.425 mm"},
-        {"aashto_silt_pct", B_0_002, B_0_075, false, "AASHTO M 145 silt, 0.002-0.075 mm"},
-        {"aashto_clay_pct", B_ZERO, B_0_002, false, "AASHTO M 145 clay, finer than 0.002 mm"},
-        {"usda_very_coarse_sand_pct", B_1, B_2, true,
+        {{"cobbles_pct"}, B_63, B_200, false, "ISO 14688-1 cobbles, 63-200 mm"},
+        {{"iso_fine_silt_pct"}, B_0_002, B_0_0063, false, "ISO 14688-1 fine silt, 0.002-0.0063 mm"},
+        {{"iso_medium_silt_pct"}, B_0_0063, B_0_02, false, "ISO 14688-1 medium silt, 0.0063-0.02 mm"},
+        {{"iso_coarse_silt_pct"}, B_0_02, B_0_063, false, "ISO 14688-1 coarse silt, 0.02-0.063 mm"},
+        {{"iso_fine_sand_pct"}, B_0_063, B_0_2, false, "ISO 14688-1 fine sand, 0.063-0.2 mm"},
+        {{"iso_medium_sand_pct"}, B_0_2, B_0_63, false, "ISO 14688-1 medium sand, 0.2-0.63 mm"},
+        {{"iso_coarse_sand_pct"}, B_0_63, B_2, false, "ISO 14688-1 coarse sand, 0.63-2 mm"},
+        {{"iso_fine_gravel_pct"}, B_2, B_6_3, false, "ISO 14688-1 fine gravel, 2-6.3 mm"},
+        {{"iso_medium_gravel_pct"}, B_6_3, B_20, false, "ISO 14688-1 medium gravel, 6.3-20 mm"},
+        {{"iso_coarse_gravel_pct"}, B_20, B_63, false, "ISO 14688-1 coarse gravel, 20-63 mm"},
+        {{"uscs_cobbles_pct"}, B_75, B_300, false, "ASTM D2487 cobbles, 75-300 mm"},
+        {{"uscs_gravel_pct"}, B_4_75, B_75, false, "ASTM D2487 gravel, 4.75-75 mm"},
+        {{"uscs_coarse_gravel_pct"}, B_19, B_75, false, "ASTM D2487 coarse gravel, 19-75 mm"},
+        {{"uscs_fine_gravel_pct"}, B_4_75, B_19, false, "ASTM D2487 fine gravel, 4.75-19 mm"},
+        {{"uscs_sand_pct"}, B_0_075, B_4_75, false, "ASTM D2487 sand, 0.075-4.75 mm"},
+        {{"uscs_coarse_sand_pct"}, B_2, B_4_75, false, "ASTM D2487 coarse sand, 2.00-4.75 mm"},
+        {{"uscs_medium_sand_pct"}, B_0_425, B_2, false, "ASTM D2487 medium sand, 0.425-2.00 mm"},
+        {{"uscs_fine_sand_pct"}, B_0_075, B_0_425, false, "ASTM D2487 fine sand, 0.075-0.425 mm"},
+        {{"uscs_fines_pct"}, B_ZERO, B_0_075, false, "ASTM D2487 fines (silt and clay), finer than 0.075 mm"},
+        {{"aashto_gravel_pct"}, B_2, B_75, false, "AASHTO M 145 gravel, 2.00-75 mm"},
+        {{"aashto_coarse_sand_pct"}, B_0_425, B_2, false, "AASHTO M 145 coarse sand, 0.425-2.00 mm"},
+        {{"aashto_fine_sand_pct"}, B_0_075, B_0_425, false, "AASHTO M 145 fine sand, 0.075-0.425 mm"},
+        {{"aashto_silt_pct"}, B_0_002, B_0_075, false, "AASHTO M 145 silt, 0.002-0.075 mm"},
+        {{"aashto_clay_pct"}, B_ZERO, B_0_002, false, "AASHTO M 145 clay, finer than 0.002 mm"},
+        {{"usda_very_coarse_sand_pct"}, B_1, B_2, true,
          "USDA very coarse sand 1-2 mm, % of the fraction finer than 2 mm"},
-        {"usda_coarse_sand_pct", B_0_5, B_1, true, "USDA coarse sand 0.5-1 mm, % of the fraction finer than 2 mm"},
-        {"usda_medium_sand_pct", B_0_25, B_0_5, true,
+        {{"usda_coarse_sand_pct"}, B_0_5, B_1, true, "USDA coarse sand 0.5-1 mm, % of the fraction finer than 2 mm"},
+        {{"usda_medium_sand_pct"}, B_0_25, B_0_5, true,
          "USDA medium sand 0.25-0.5 mm, % of the fraction finer than 2 mm"},
-        {"usda_fine_sand_pct", B_0_1, B_0_25, true, "USDA fine sand 0.10-0.25 mm, % of the fraction finer than 2 mm"},
-        {"usda_very_fine_sand_pct", B_0_05, B_0_1, true,
+        {{"usda_fine_sand_pct"}, B_0_1, B_0_25, true, "USDA fine sand 0.10-0.25 mm, % of the fraction finer than 2 mm"},
+        {{"usda_very_fine_sand_pct"}, B_0_05, B_0_1, true,
          "USDA very fine sand 0.05-0.10 mm, % of the fraction finer than 2 mm"},
-        {"finer_0_02_mm_pct", B_ZERO, B_0_02, false,
+        {{"finer_0_02_mm_pct"}, B_ZERO, B_0_02, false,
          "percent finer than 0.02 mm, input to frost-susceptibility screens (a screen, not a design value)"},
-        {"passing_2_00_mm_pct", B_ZERO, B_2, false, "percent passing 2.00 mm (No. 10)"},
-        {"passing_0_425_mm_pct", B_ZERO, B_0_425, false, "percent passing 0.425 mm (No. 40)"},
-        {"passing_0_075_mm_pct", B_ZERO, B_0_075, false, "percent passing 0.075 mm (No. 200)"},
+        {{"passing_2_00_mm_pct"}, B_ZERO, B_2, false, "percent passing 2.00 mm (No. 10)"},
+        {{"passing_0_425_mm_pct"}, B_ZERO, B_0_425, false, "percent passing 0.425 mm (No. 40)"},
+        {{"passing_0_075_mm_pct"}, B_ZERO, B_0_075, false, "percent passing 0.075 mm (No. 200)"},
     };
-    for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++) {
-        if ((st = add_fraction_on(&x, fr[i].name, fr[i].lower, fr[i].upper, fr[i].of_fine_earth ? &p2 : NULL,
-                                  fr[i].what)) != SG_OK)
-            return st;
-        if (fr[i].lower == B_ZERO && fr[i].upper == B_0_02) /* finer_0_02_mm_pct */
-            keep(&x, SG_KEY_FINER_0_02_MM_PCT, res->n_quantities - 1);
+    if (x.quiet) {
+        /* the Monte Carlo draws' path: add_fraction_on's quiet rows in one
+         * loop, without its test of quiet per row */
+        const double basis_pct = p2.ok && p2.value > 0.0 ? p2.value : (double)NAN;
+        for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++) {
+            double v = x.pv[fr[i].upper] - x.pv[fr[i].lower]; /* NaN unless both are determined */
+            if (fr[i].of_fine_earth)
+                v = 100.0 * v / basis_pct;
+            struct sg_quantity *q = sg_result_new_quantity_static(res, &fr[i].name, UNIT_PCT, NULL);
+            if (q == NULL)
+                return nomem(&x);
+            if (isfinite(v)) { /* else as written: not determined, value NaN */
+                q->determined = true;
+                q->value = v;
+            }
+            if (fr[i].lower == B_ZERO && fr[i].upper == B_0_02) /* finer_0_02_mm_pct */
+                keep(&x, SG_KEY_FINER_0_02_MM_PCT, res->n_quantities - 1);
+        }
+    } else {
+        for (size_t i = 0; i < sizeof fr / sizeof fr[0]; i++) {
+            if ((st = add_fraction_on(&x, &fr[i].name, fr[i].lower, fr[i].upper, fr[i].of_fine_earth ? &p2 : NULL,
+                                      fr[i].what)) != SG_OK)
+                return st;
+            if (fr[i].lower == B_ZERO && fr[i].upper == B_0_02) /* finer_0_02_mm_pct */
+                keep(&x, SG_KEY_FINER_0_02_MM_PCT, res->n_quantities - 1);
+        }
     }
 
     if ((st = add_uscs(&x, cu, cc)) != SG_OK || (st = add_iso_grading(&x, cu, cc)) != SG_OK ||

@@ -231,6 +231,11 @@ static void cat_add(struct cat_table *t, const char *text, size_t count)
 
 /* ---- the run ------------------------------------------------------------- */
 
+/* An address no row's name_src holds (no row is written from it): the
+ * src of a followed quantity without a static name, so that match() needs
+ * no test for NULL. */
+static const struct sg_static_qname NOT_A_ROW_NAME = {""};
+
 /* How a nominal quantity is followed through the draws: numeric (u and
  * interval), categorical (class counts), or not determined in the nominal
  * result (only how often, and as what, the draws determine it). */
@@ -255,11 +260,18 @@ struct plan {
     struct follow {
         size_t q;          /* nominal index */
         size_t j;          /* where a draw's result is expected to hold it */
+        /* the nominal row's name_src when its name is still that static
+         * name, else &NOT_A_ROW_NAME (then only names are compared) */
+        const struct sg_static_qname *src;
         enum qkind kind;
         size_t slot;       /* value slot (Q_NUMERIC, Q_UNDET) */
         size_t cat;        /* class table (Q_CATEGORICAL, Q_UNDET) */
     } *follow;
     size_t n_follow;
+    /* the same, Q_NUMERIC first (n_draw_num of them), for the draws: a
+     * tight loop over the numeric ones, the others by kind */
+    struct follow *draw_follow;
+    size_t n_draw_num;
     /* slots: n_num numeric (with tails), n_und undetermined, then percent
      * finer and diameter of each point */
     size_t n_num, n_und, n_cat, n_pts, n_slots, pts0;
@@ -381,26 +393,40 @@ static void perturb(const struct plan *p, struct sg_record *r, struct sg_constan
     }
 }
 
-/* The draw's quantity that corresponds to followed quantity f. */
-static const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs, const struct follow *f)
+/* match() when the expected row is not the same static name: by name. */
+static const struct sg_quantity *match_by_name(const struct plan *p, const struct sg_result *rs,
+                                               const struct follow *f)
 {
-    /* names as whole arrays first (the result zero-pads them, as calloc did
-     * p->names): equal arrays are equal names; else by name */
-    if (f->j < rs->n_quantities && memcmp(rs->quantities[f->j].name, p->names[f->q], sizeof p->names[f->q]) == 0)
-        return &rs->quantities[f->j];
+    if (f->j < rs->n_quantities) {
+        /* names as whole arrays (the result zero-pads them, as calloc did
+         * p->names): equal arrays are equal names */
+        const struct sg_quantity *q = &rs->quantities[f->j];
+        if (memcmp(q->name, p->names[f->q], sizeof p->names[f->q]) == 0)
+            return q;
+    }
     return sg_result_quantity(rs, p->names[f->q]);
 }
 
-/* Adds one draw's value of slot s to the block's moments and, for a
- * numeric slot, to the tail candidates; a value that is not finite (not
- * determined in the draw) is not counted. */
-static inline void take(const struct plan *p, struct worker *w, struct moments *bs, size_t s, double x)
+/* The draw's quantity that corresponds to followed quantity f, rows and
+ * n_rows being the draw's quantities (read once per draw by the caller). */
+static inline const struct sg_quantity *match(const struct plan *p, const struct sg_result *rs,
+                                              const struct sg_quantity *rows, size_t n_rows, const struct follow *f)
 {
-    if (!isfinite(x))
-        return;
-    moments_add(&bs[s], x - p->shift[s]);
-    if (s >= p->n_num)
-        return;
+    /* the same static name array (result.h: name_src) is the same name */
+    if (f->j < n_rows && rows[f->j].name_src == f->src) /* f->src never NULL */
+        return &rows[f->j];
+    return match_by_name(p, rs, f);
+}
+
+/* Adds one draw's value x of numeric slot s (finite) to the block's sums
+ * and to the tail candidates. Its count is not kept here: during a block
+ * bs[s].n counts the draws without a value (miss()), and the block's end
+ * makes it the draws with one. */
+static inline void take_num(const struct plan *p, struct worker *w, struct moments *bs, size_t s, double x)
+{
+    const double d = x - p->shift[s];
+    bs[s].s1 += d;
+    bs[s].s2 += d * d;
     const size_t tl = 2 * s, th = tl + 1;
     if (x < w->thresh[tl])
         w->cand[tl * SG_MC_BLOCK_DRAWS + w->n_cand[tl]++] = x;
@@ -408,38 +434,68 @@ static inline void take(const struct plan *p, struct worker *w, struct moments *
         w->cand[th * SG_MC_BLOCK_DRAWS + w->n_cand[th]++] = -x;
 }
 
-/* Takes one successful draw's values into the block's sums and the tail
- * candidates, and counts its classes. */
-static void extract(const struct plan *p, const struct sg_result *rs, struct worker *w, struct moments *bs)
+/* A draw without a value for a numeric or point slot (see take_num). */
+static inline void miss(struct moments *bs, size_t s)
 {
+    bs[s].n += 1.0;
+}
+
+/* A point slot's value of a draw: summed when finite (no tails; counted
+ * as take_num's), else missed. */
+static inline void take_point(const struct plan *p, struct moments *bs, size_t s, double x)
+{
+    if (!isfinite(x)) {
+        miss(bs, s);
+        return;
+    }
+    const double d = x - p->shift[s];
+    bs[s].s1 += d;
+    bs[s].s2 += d * d;
+}
+
+/* Takes one successful draw's values into the block's sums and the tail
+ * candidates, and counts its classes. True when the draw's points were
+ * taken too (as many as the nominal result's). */
+static bool extract(const struct plan *p, const struct sg_result *rs, struct worker *w, struct moments *bs)
+{
+    const struct follow *f = p->draw_follow, *const num_end = f + p->n_draw_num, *const end = f + p->n_follow;
+    const struct sg_quantity *const rows = rs->quantities;
+    const size_t n_rows = rs->n_quantities;
+    for (; f < num_end; f++) {
+        const struct sg_quantity *q = match(p, rs, rows, n_rows, f);
+        if (q != NULL && q->determined && !q->is_text && isfinite(q->value))
+            take_num(p, w, bs, f->slot, q->value);
+        else
+            miss(bs, f->slot);
+    }
     struct cat_table *cats = w->cats;
-    for (const struct follow *f = p->follow, *end = f + p->n_follow; f < end; f++) {
-        const struct sg_quantity *q = match(p, rs, f);
+    for (; f < end; f++) {
+        const struct sg_quantity *q = match(p, rs, rows, n_rows, f);
         const bool det = q != NULL && q->determined;
-        switch (f->kind) {
-        case Q_NUMERIC:
-            if (det && !q->is_text)
-                take(p, w, bs, f->slot, q->value);
-            break;
-        case Q_CATEGORICAL:
+        if (f->kind == Q_CATEGORICAL) {
             cat_add(&cats[f->cat], det ? q->text : "", 1);
-            break;
-        case Q_UNDET:
-            if (det)
-                take(p, w, bs, f->slot, q->is_text ? 0.0 : q->value);
-            if (det && q->is_text)
+        } else if (det) { /* Q_UNDET: counted where determined, shift 0 */
+            const double x = q->is_text ? 0.0 : q->value;
+            if (isfinite(x))
+                moments_add(&bs[f->slot], x);
+            if (q->is_text)
                 cat_add(&cats[f->cat], q->text, 1);
-            break;
-        case Q_SKIP:
-            break;
         }
     }
     if (rs->n_points != p->n_pts)
-        return;
+        return false;
     for (size_t i = 0; i < p->n_pts; i++) {
-        take(p, w, bs, p->pts0 + 2 * i, rs->points[i].percent_finer);
-        take(p, w, bs, p->pts0 + 2 * i + 1, rs->points[i].diameter_mm);
+        const size_t sp = p->pts0 + 2 * i, sd = sp + 1;
+        take_point(p, bs, sp, rs->points[i].percent_finer);
+        /* a diameter equal to the nominal one (every sieve's aperture) adds
+         * a zero to sums that start at +0 and so are never -0 (a sum is -0
+         * only when both terms are): it changes no bit, and it is counted
+         * as a value (only misses are counted) */
+        const double d = rs->points[i].diameter_mm;
+        if (d != p->shift[sd])
+            take_point(p, bs, sd, d);
     }
+    return true;
 }
 
 static void *work(void *arg)
@@ -472,11 +528,13 @@ static void *work(void *arg)
             bs[s] = (struct moments){0.0, 0.0, 0.0};
         for (size_t t = 0; t < 2 * p->n_num; t++)
             w->n_cand[t] = 0;
+        size_t n_ok = 0, n_with_points = 0; /* draws taken, and with their points */
         for (size_t j = 0; j < nd; j++) {
             perturb(p, &r, &k, g);
             struct sg_error e;
             if (sg_reduce(&r, &k, &p->opt, &rs, &e) == SG_OK) {
-                extract(p, &rs, w, bs);
+                n_ok++;
+                n_with_points += extract(p, &rs, w, bs);
                 continue;
             }
             if (w->failed++ == 0 || first + j < w->first_failure_draw) {
@@ -484,6 +542,12 @@ static void *work(void *arg)
                 (void)snprintf(w->first_failure, sizeof w->first_failure, "%s", e.msg);
             }
         }
+        /* numeric and point slots counted their misses (take_num): now
+         * the values, exact integers as the sums of 1.0 were */
+        for (size_t s = 0; s < p->n_num; s++)
+            bs[s].n = (double)n_ok - bs[s].n;
+        for (size_t s = p->pts0; s < p->n_slots; s++)
+            bs[s].n = (double)n_with_points - bs[s].n;
         pthread_mutex_lock(&p->lock);
         for (size_t s = 0; s < p->n_num; s++) {
             const size_t tl = 2 * s, th = tl + 1;
@@ -764,6 +828,7 @@ static void plan_release(struct plan *p)
     free(p->names);
     free(p->shift);
     free(p->follow);
+    free(p->draw_follow);
     free(p->block_stats);
     if (p->lo != NULL)
         for (size_t s = 0; s < p->n_num; s++)
@@ -854,6 +919,15 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
         struct follow *f = &p.follow[p.n_follow++];
         f->q = i;
         f->j = (size_t)(dq - layout.quantities);
+        f->src = &NOT_A_ROW_NAME;
+        if (q->name_src != NULL) {
+            /* the static name as a row holds it (cut to SG_QNAME_MAX - 1) */
+            char src_name[SG_QNAME_MAX];
+            memcpy(src_name, q->name_src->s, sizeof src_name);
+            src_name[SG_QNAME_MAX - 1] = '\0';
+            if (memcmp(src_name, p.names[i], sizeof src_name) == 0)
+                f->src = q->name_src;
+        }
         if (!q->determined) {
             f->kind = Q_UNDET;
             f->cat = p.n_cat++;
@@ -869,6 +943,9 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
     sg_result_release(&layout);
     if (st != SG_OK)
         goto cleanup;
+    p.draw_follow = calloc(p.n_follow ? p.n_follow : 1, sizeof *p.draw_follow);
+    if (p.draw_follow == NULL)
+        goto nomem;
     p.pts0 = p.n_num + p.n_und;
     p.n_slots = p.pts0 + 2 * p.n_pts;
     p.shift = calloc(p.n_slots ? p.n_slots : 1, sizeof *p.shift);
@@ -881,6 +958,12 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
         else if (f->kind == Q_NUMERIC)
             p.shift[f->slot] = res->quantities[f->q].value;
     }
+    for (size_t i = 0; i < p.n_follow; i++) /* slots set: the numeric ones first */
+        if (p.follow[i].kind == Q_NUMERIC)
+            p.draw_follow[p.n_draw_num++] = p.follow[i];
+    for (size_t i = 0, n = p.n_draw_num; i < p.n_follow; i++)
+        if (p.follow[i].kind != Q_NUMERIC)
+            p.draw_follow[n++] = p.follow[i];
     for (size_t i = 0; i < p.n_pts; i++) {
         const double pf = res->points[i].percent_finer, d = res->points[i].diameter_mm;
         p.shift[p.pts0 + 2 * i] = isfinite(pf) ? pf : 0.0;

@@ -182,11 +182,21 @@ static enum sg_status nomem(struct ctx *x)
     return sg_error_set(x->err, SG_ENOMEM, 0, 0, "out of memory adding the plasticity rows");
 }
 
-/* Rows named by whole arrays (SG_QNAME, SG_QUNIT), copied as blocks. */
-static enum sg_status value(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], double v,
+/* Row names: static (result.h: SG_STATIC_QNAME), each row keeps the address. */
+SG_STATIC_QNAME(N_ACTIVITY, "activity");
+SG_STATIC_QNAME(N_ACTIVITY_CLASS, "activity_class");
+SG_STATIC_QNAME(N_BS5930_PLASTICITY, "bs5930_plasticity");
+SG_STATIC_QNAME(N_CASAGRANDE_CHART, "casagrande_chart");
+SG_STATIC_QNAME(N_LIQUIDITY_INDEX, "liquidity_index");
+SG_STATIC_QNAME(N_PLASTICITY_INDEX_PCT, "plasticity_index_pct");
+SG_STATIC_QNAME(N_USCS_SYMBOL, "uscs_symbol");
+
+/* Rows named by static names and units as whole arrays (SG_QUNIT), copied
+ * as blocks. */
+static enum sg_status value(struct ctx *x, const struct sg_static_qname *name, const char unit[SG_QUNIT_MAX], double v,
                             const char *note)
 {
-    struct sg_quantity *q = sg_result_new_quantity(x->res, name, unit, x->no_notes ? "" : note);
+    struct sg_quantity *q = sg_result_new_quantity_static(x->res, name, unit, x->no_notes ? "" : note);
     if (q == NULL)
         return nomem(x);
     sg_quantity_set_value(q, v);
@@ -195,15 +205,15 @@ static enum sg_status value(struct ctx *x, const char name[SG_QNAME_MAX], const 
 
 /* Inline: without the limits (most records, and every Monte Carlo draw of
  * them) the summary is seven such rows. */
-static inline enum sg_status undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX],
+static inline enum sg_status undet(struct ctx *x, const struct sg_static_qname *name, const char unit[SG_QUNIT_MAX],
                             const char *note)
 {
-    return sg_result_new_quantity(x->res, name, unit, x->no_notes ? "" : note) != NULL ? SG_OK : nomem(x);
+    return sg_result_new_quantity_static(x->res, name, unit, x->no_notes ? "" : note) != NULL ? SG_OK : nomem(x);
 }
 
-static enum sg_status text(struct ctx *x, const char name[SG_QNAME_MAX], const char *t, const char *note)
+static enum sg_status text(struct ctx *x, const struct sg_static_qname *name, const char *t, const char *note)
 {
-    struct sg_quantity *q = sg_result_new_quantity(x->res, name, SG_QUNIT(""), x->no_notes ? "" : note);
+    struct sg_quantity *q = sg_result_new_quantity_static(x->res, name, SG_QUNIT(""), x->no_notes ? "" : note);
     if (q == NULL)
         return nomem(x);
     sg_quantity_set_text(q, t);
@@ -244,11 +254,11 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
                        "'test,%s,<percent>')",
                        have_ll ? "liquid" : "plastic", have_ll ? "plastic_limit_pct" : "liquid_limit_pct")) != SG_OK)
             return st;
-        if ((st = undet(x, SG_QNAME("plasticity_index_pct"), SG_QUNIT("%"),
+        if ((st = undet(x, &N_PLASTICITY_INDEX_PCT, SG_QUNIT("%"),
                         "not determined: needs the liquid and plastic limits (test,liquid_limit_pct and "
                         "test,plastic_limit_pct, ASTM D4318 or BS 1377-2)")) != SG_OK)
             return st;
-        return undet(x, SG_QNAME("liquidity_index"), SG_QUNIT(""), "not determined: needs the liquid and plastic limits");
+        return undet(x, &N_LIQUIDITY_INDEX, SG_QUNIT(""), "not determined: needs the liquid and plastic limits");
     }
     const double l = rec->liquid_limit_pct, p = rec->plastic_limit_pct;
     if (!isfinite(l) || !isfinite(p) || l <= 0.0 || p <= 0.0 || l > LL_MAX_PCT || p > LL_MAX_PCT) {
@@ -257,10 +267,10 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
                        "dry mass, within 0-%g %%)",
                        l, p, LL_MAX_PCT)) != SG_OK)
             return st;
-        if ((st = undet(x, SG_QNAME("plasticity_index_pct"), SG_QUNIT("%"), "not determined: liquid or plastic limit not credible")) !=
+        if ((st = undet(x, &N_PLASTICITY_INDEX_PCT, SG_QUNIT("%"), "not determined: liquid or plastic limit not credible")) !=
             SG_OK)
             return st;
-        return undet(x, SG_QNAME("liquidity_index"), SG_QUNIT(""), "not determined: liquid or plastic limit not credible");
+        return undet(x, &N_LIQUIDITY_INDEX, SG_QUNIT(""), "not determined: liquid or plastic limit not credible");
     }
     *ll = l;
     if (p >= l) {
@@ -270,17 +280,17 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
                            "non-plastic: the plastic limit %g %% is not below the liquid limit %g %% (ASTM D4318 "
                            "reports NP)",
                            p, l);
-        if ((st = value(x, SG_QNAME("plasticity_index_pct"), SG_QUNIT("%"), 0.0, note)) != SG_OK)
+        if ((st = value(x, &N_PLASTICITY_INDEX_PCT, SG_QUNIT("%"), 0.0, note)) != SG_OK)
             return st;
-        return undet(x, SG_QNAME("liquidity_index"), SG_QUNIT(""), "not determined: non-plastic (PI 0)");
+        return undet(x, &N_LIQUIDITY_INDEX, SG_QUNIT(""), "not determined: non-plastic (PI 0)");
     }
     *pi = l - p;
     if (!x->no_notes)
         (void)snprintf(note, sizeof note, "PI = LL - PL = %g - %g (limits as given in the record)", l, p);
-    if ((st = value(x, SG_QNAME("plasticity_index_pct"), SG_QUNIT("%"), *pi, note)) != SG_OK)
+    if ((st = value(x, &N_PLASTICITY_INDEX_PCT, SG_QUNIT("%"), *pi, note)) != SG_OK)
         return st;
     if (!rec->has_natural_moisture || !isfinite(rec->natural_moisture_pct) || rec->natural_moisture_pct < 0.0)
-        return undet(x, SG_QNAME("liquidity_index"), SG_QUNIT(""),
+        return undet(x, &N_LIQUIDITY_INDEX, SG_QUNIT(""),
                      "not determined: needs the natural moisture content (test,natural_moisture_pct)");
     const double li = (rec->natural_moisture_pct - p) / *pi;
     if (!x->no_notes)
@@ -288,7 +298,7 @@ static enum sg_status add_limits(struct ctx *x, const struct sg_record *rec, dou
                        li < 0.0   ? "drier than the plastic limit (semi-solid)"
                        : li > 1.0 ? "wetter than the liquid limit (liquid when remoulded; sensitive)"
                                   : "between the plastic and liquid limits (plastic)");
-    return value(x, SG_QNAME("liquidity_index"), SG_QUNIT(""), li, note);
+    return value(x, &N_LIQUIDITY_INDEX, SG_QUNIT(""), li, note);
 }
 
 static enum sg_status add_chart(struct ctx *x, double ll, double pi)
@@ -297,9 +307,9 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
     note[0] = '\0';
     enum sg_status st;
     if (!isfinite(ll) || !isfinite(pi)) {
-        if ((st = undet(x, SG_QNAME("casagrande_chart"), SG_QUNIT(""), "not determined: needs the liquid and plastic limits")) != SG_OK)
+        if ((st = undet(x, &N_CASAGRANDE_CHART, SG_QUNIT(""), "not determined: needs the liquid and plastic limits")) != SG_OK)
             return st;
-        return undet(x, SG_QNAME("bs5930_plasticity"), SG_QUNIT(""), "not determined: needs the liquid and plastic limits");
+        return undet(x, &N_BS5930_PLASTICITY, SG_QUNIT(""), "not determined: needs the liquid and plastic limits");
     }
     const enum sg_chart_zone z = sg_plasticity_chart_zone(ll, pi);
     if (!x->no_notes)
@@ -308,7 +318,7 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
                        "%% (0.9 (LL - 8))%s",
                        ll, pi, sg_plasticity_a_line_pi(ll), sg_plasticity_u_line_pi(ll),
                        z == SG_CHART_ABOVE_U ? "; beyond the upper limit of natural soils: re-test the limits" : "");
-    if ((st = text(x, SG_QNAME("casagrande_chart"), sg_plasticity_zone_name(z), note)) != SG_OK)
+    if ((st = text(x, &N_CASAGRANDE_CHART, sg_plasticity_zone_name(z), note)) != SG_OK)
         return st;
     if (z == SG_CHART_ABOVE_U &&
         (st = FLAG(x, "plasticity_u_line", SG_SEVERITY_WARNING,
@@ -320,7 +330,7 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
     char letter = '\0';
     const char *term = sg_plasticity_bs5930_term(ll, &letter);
     if (term == NULL)
-        return undet(x, SG_QNAME("bs5930_plasticity"), SG_QUNIT(""), "not determined: liquid limit not credible");
+        return undet(x, &N_BS5930_PLASTICITY, SG_QUNIT(""), "not determined: liquid limit not credible");
     /* "<M|C><letter>: <silt|clay> of <term> plasticity" (well within the text's size) */
     char t[SG_QTEXT_MAX] = "non-plastic";
     if (z != SG_CHART_NON_PLASTIC) {
@@ -334,7 +344,7 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
         memcpy(t + 12, term, lt);
         memcpy(t + 12 + lt, " plasticity", sizeof " plasticity");
     }
-    return text(x, SG_QNAME("bs5930_plasticity"), t,
+    return text(x, &N_BS5930_PLASTICITY, t,
                 "BS 5930 plasticity by liquid limit (from memory): low < 35, intermediate 35-50, high 50-70, "
                 "very high 70-90, extremely high >= 90 %; C above the A-line, M below");
 }
@@ -371,7 +381,7 @@ static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, doubl
     if (sym == NULL) {
         if (!x->no_notes)
             (void)snprintf(note, sizeof note, "not determined: %s", why);
-        return undet(x, SG_QNAME("uscs_symbol"), SG_QUNIT(""), note);
+        return undet(x, &N_USCS_SYMBOL, SG_QUNIT(""), note);
     }
     if (!x->no_notes)
         (void)snprintf(note, sizeof note,
@@ -379,7 +389,7 @@ static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, doubl
                        "75 mm%s; inorganic assumed (OL/OH need the oven-dried liquid limit)",
                        in.fines_pct,
                        isfinite(ll) ? " and the plasticity of the fines" : "");
-    return text(x, SG_QNAME("uscs_symbol"), sym, note);
+    return text(x, &N_USCS_SYMBOL, sym, note);
 }
 
 static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, double pi)
@@ -389,20 +399,20 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
     note[0] = '\0';
     const double cf = sg_result_key(res, SG_KEY_CLAY_PCT);
     if (!isfinite(pi)) {
-        if ((st = undet(x, SG_QNAME("activity"), SG_QUNIT(""), "not determined: needs the plasticity index")) != SG_OK)
+        if ((st = undet(x, &N_ACTIVITY, SG_QUNIT(""), "not determined: needs the plasticity index")) != SG_OK)
             return st;
-        return undet(x, SG_QNAME("activity_class"), SG_QUNIT(""), "not determined: needs the plasticity index");
+        return undet(x, &N_ACTIVITY_CLASS, SG_QUNIT(""), "not determined: needs the plasticity index");
     }
     if (!isfinite(cf)) {
         if ((st = FLAG(x, "activity_not_computed", SG_SEVERITY_INFO,
                        "the clay fraction (finer than 0.002 mm) is not determined: the curve does not reach 2 um, "
                        "so Skempton's activity cannot be computed (extend the readings to a finer size)")) != SG_OK)
             return st;
-        if ((st = undet(x, SG_QNAME("activity"), SG_QUNIT(""),
+        if ((st = undet(x, &N_ACTIVITY, SG_QUNIT(""),
                         "not determined: the clay fraction is not determined (the curve does not reach 0.002 mm)")) !=
             SG_OK)
             return st;
-        return undet(x, SG_QNAME("activity_class"), SG_QUNIT(""), "not determined: the clay fraction is not determined");
+        return undet(x, &N_ACTIVITY_CLASS, SG_QUNIT(""), "not determined: the clay fraction is not determined");
     }
     if (pi <= 0.0) {
         if (cf >= SG_PLAST_PLASTIC_CLAY_MIN_PCT &&
@@ -411,14 +421,14 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
                        "check the limits, the dispersion or whether the fines are rock flour",
                        cf, SG_PLAST_PLASTIC_CLAY_MIN_PCT)) != SG_OK)
             return st;
-        if ((st = undet(x, SG_QNAME("activity"), SG_QUNIT(""), "not determined: non-plastic (PI 0)")) != SG_OK)
+        if ((st = undet(x, &N_ACTIVITY, SG_QUNIT(""), "not determined: non-plastic (PI 0)")) != SG_OK)
             return st;
-        return undet(x, SG_QNAME("activity_class"), SG_QUNIT(""), "not determined: non-plastic");
+        return undet(x, &N_ACTIVITY_CLASS, SG_QUNIT(""), "not determined: non-plastic");
     }
     if (!(cf > 0.0)) {
-        if ((st = undet(x, SG_QNAME("activity"), SG_QUNIT(""), "not determined: no clay-size material (clay fraction 0 %)")) != SG_OK)
+        if ((st = undet(x, &N_ACTIVITY, SG_QUNIT(""), "not determined: no clay-size material (clay fraction 0 %)")) != SG_OK)
             return st;
-        return undet(x, SG_QNAME("activity_class"), SG_QUNIT(""), "not determined: no clay-size material");
+        return undet(x, &N_ACTIVITY_CLASS, SG_QUNIT(""), "not determined: no clay-size material");
     }
     const double a = pi / cf;
     if (!x->no_notes)
@@ -426,7 +436,7 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
                        "Skempton activity A = PI / clay fraction = %g / %.2f (clay: %% of the whole sample finer than "
                        "0.002 mm)",
                        pi, cf);
-    if ((st = value(x, SG_QNAME("activity"), SG_QUNIT(""), a, note)) != SG_OK)
+    if ((st = value(x, &N_ACTIVITY, SG_QUNIT(""), a, note)) != SG_OK)
         return st;
     if ((a < SG_ACTIVITY_MINERAL_MIN || a > SG_ACTIVITY_MINERAL_MAX) &&
         (st = FLAG(x, "activity_range", SG_SEVERITY_WARNING,
@@ -434,7 +444,7 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
                    "Na-smectite): check the plasticity index and the clay fraction",
                    a, SG_ACTIVITY_MINERAL_MIN, SG_ACTIVITY_MINERAL_MAX)) != SG_OK)
         return st;
-    return text(x, SG_QNAME("activity_class"), sg_plasticity_activity_class(a),
+    return text(x, &N_ACTIVITY_CLASS, sg_plasticity_activity_class(a),
                 "Skempton (1953) classes: inactive < 0.75, normal 0.75-1.25, active > 1.25");
 }
 

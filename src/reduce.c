@@ -394,9 +394,9 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
 
     /* the row from a padded name, with no note in a draw (values_only):
      * sg_result_add_value's work without measuring and copying strings */
-    static const char split_name[SG_QNAME_MAX] = "split_passing_pct";
-    struct sg_quantity *q = sg_result_new_quantity(
-        res, split_name, SG_QUNIT("%"), opt->values_only ? NULL : "percent of the whole sample passing the split sieve");
+    SG_STATIC_QNAME(split_name, "split_passing_pct"); /* static: the row keeps its address */
+    struct sg_quantity *q = sg_result_new_quantity_static(
+        res, &split_name, SG_QUNIT("%"), opt->values_only ? NULL : "percent of the whole sample passing the split sieve");
     if (q == NULL)
         return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
     q->determined = isfinite(pp_split);

@@ -61,9 +61,12 @@ static enum sg_status nomem(struct sg_error *err)
     return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory adding the screens");
 }
 
-/* The hazen_k_cm_s and frost_screen rows are named by whole arrays
- * (SG_QNAME), copied as one block: they are added once per Monte Carlo
- * draw. */
+/* The hazen_k_cm_s and frost_screen rows are named by static names
+ * (result.h: SG_STATIC_QNAME), copied as one block and kept by address:
+ * they are added once per Monte Carlo draw. */
+SG_STATIC_QNAME(N_HAZEN_K_CM_S, "hazen_k_cm_s");
+SG_STATIC_QNAME(N_FROST_SCREEN, "frost_screen");
+
 static enum sg_status add_hazen(struct sg_result *res, bool quiet, struct sg_error *err)
 {
     char note[SG_QNOTE_MAX];
@@ -89,7 +92,7 @@ static enum sg_status add_hazen(struct sg_result *res, bool quiet, struct sg_err
                            isfinite(cu) && cu >= SG_HAZEN_CU_NOTE ? "; Cu >= 5: not the uniform sand Hazen assumed"
                                                                   : "");
     }
-    struct sg_quantity *q = sg_result_new_quantity(res, SG_QNAME("hazen_k_cm_s"), SG_QUNIT("cm/s"), why);
+    struct sg_quantity *q = sg_result_new_quantity_static(res, &N_HAZEN_K_CM_S, SG_QUNIT("cm/s"), why);
     if (q == NULL)
         return nomem(err);
     sg_quantity_set_value(q, k);
@@ -119,7 +122,7 @@ static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_err
                            uniform ? SG_FROST_UNIFORM_SUSCEPTIBLE_PCT : SG_FROST_SUSCEPTIBLE_PCT,
                            isfinite(cu) ? "" : "; Cu not determined, non-uniform limits used");
     }
-    struct sg_quantity *q = sg_result_new_quantity(res, SG_QNAME("frost_screen"), SG_QUNIT(""), why);
+    struct sg_quantity *q = sg_result_new_quantity_static(res, &N_FROST_SCREEN, SG_QUNIT(""), why);
     if (q == NULL)
         return nomem(err);
     if (class_name != NULL)

@@ -64,6 +64,11 @@ struct sg_quantity {
      * by side and the four numbers in a row, so that a new row's blanks
      * take few stores) */
     double u, low95, high95;
+    /* The static name the row was written from (sg_result_new_quantity_static),
+     * else NULL. Equal and not NULL in two rows: the same immutable array,
+     * hence the same name (a cheap first test in mc.c). Whoever changes
+     * name after writing the row sets name_src NULL. */
+    const struct sg_static_qname *name_src;
     char text[SG_QTEXT_MAX];
     char note[SG_QNOTE_MAX];
 };
@@ -147,20 +152,27 @@ enum sg_status sg_result_reserve_quantity(struct sg_result *r);
 #define SG_QNAME(s) ((const char[SG_QNAME_MAX]){s})
 #define SG_QUNIT(s) ((const char[SG_QUNIT_MAX]){s})
 
+/* A row name with static storage duration, for sg_result_new_quantity_static:
+ * declare it only with SG_STATIC_QNAME or as an entry of a `static const`
+ * table (file scope or a block's static), never as an automatic variable
+ * nor a compound literal (automatic in a function). A row keeps its
+ * address, so the array must outlive every result and never change.
+ * A type of its own, so that SG_QNAME(...) and name buffers do not
+ * convert to it. */
+struct sg_static_qname {
+    char s[SG_QNAME_MAX]; /* zero after the text */
+};
+
+/* Declares id, a row name with static storage duration (see above). */
+#define SG_STATIC_QNAME(id, text) static const struct sg_static_qname id = {text}
+
 /* Copies note into q->note, cut to fit (the rare part of
  * sg_result_new_quantity: values-only rows have no notes). */
 void sg_quantity_copy_note(struct sg_quantity *q, const char *note);
 
-/* Appends a row that is not determined (value NaN, empty text, no u), to be
- * filled in place, for callers that add many rows from tables of names:
- * name is a whole SG_QNAME_MAX-byte array and unit a whole SG_QUNIT_MAX-byte
- * array, zero after their text (e.g. entries of static tables), each copied
- * as one block without measuring it; note as for sg_result_add_value
- * (NULL or "": none). NULL when out of memory.
- * Inline: a reduction adds about 90 rows, and as many per Monte Carlo
- * draw. */
-static inline struct sg_quantity *sg_result_new_quantity(struct sg_result *r, const char name[SG_QNAME_MAX],
-                                                         const char unit[SG_QUNIT_MAX], const char *note)
+/* The body of the two writers below (not for callers: name_src unset). */
+static inline struct sg_quantity *sg_result_new_row_(struct sg_result *r, const char name[SG_QNAME_MAX],
+                                                     const char unit[SG_QUNIT_MAX], const char *note)
 {
     if (r->n_quantities == r->cap_quantities && sg_result_reserve_quantity(r) != SG_OK)
         return NULL;
@@ -178,6 +190,36 @@ static inline struct sg_quantity *sg_result_new_quantity(struct sg_result *r, co
         sg_quantity_copy_note(q, note);
     else
         q->note[0] = '\0';
+    return q;
+}
+
+/* Appends a row that is not determined (value NaN, empty text, no u), to be
+ * filled in place, for callers that add many rows from tables of names:
+ * name is a whole SG_QNAME_MAX-byte array and unit a whole SG_QUNIT_MAX-byte
+ * array, zero after their text (e.g. entries of static tables), each copied
+ * as one block without measuring it; note as for sg_result_add_value
+ * (NULL or "": none). name_src NULL. NULL when out of memory.
+ * Inline: a reduction adds about 90 rows, and as many per Monte Carlo
+ * draw. */
+static inline struct sg_quantity *sg_result_new_quantity(struct sg_result *r, const char name[SG_QNAME_MAX],
+                                                         const char unit[SG_QUNIT_MAX], const char *note)
+{
+    struct sg_quantity *q = sg_result_new_row_(r, name, unit, note);
+    if (q != NULL)
+        q->name_src = NULL;
+    return q;
+}
+
+/* As sg_result_new_quantity, named by a static name (struct
+ * sg_static_qname: static storage only, see there), whose address the row
+ * keeps in name_src. */
+static inline struct sg_quantity *sg_result_new_quantity_static(struct sg_result *r,
+                                                                const struct sg_static_qname *name,
+                                                                const char unit[SG_QUNIT_MAX], const char *note)
+{
+    struct sg_quantity *q = sg_result_new_row_(r, name->s, unit, note);
+    if (q != NULL)
+        q->name_src = name;
     return q;
 }
 
