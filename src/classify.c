@@ -505,20 +505,22 @@ static void join(char *buf, size_t n, const char *first, ...)
     buf[used] = '\0';
 }
 
-/* Adds d<x>_mm for the reading r of D at percent p, named name (NULL: from
- * p) with p written as shown (p as "%g" would write it; NULL: formatted). */
-static enum sg_status add_dx_row(struct ctx *x, double p, const char name[SG_QNAME_MAX], const char *shown,
-                                 const struct reading *r)
+/* Adds d<x>_mm for the reading r of D at percent p, named sname (a static
+ * name: the row keeps its address) or else name (NULL: from p), with p
+ * written as shown (p as "%g" would write it; NULL: formatted). */
+static enum sg_status add_dx_row(struct ctx *x, double p, const struct sg_static_qname *sname,
+                                 const char name[SG_QNAME_MAX], const char *shown, const struct reading *r)
 {
     char label[24], name_buf[SG_QNAME_MAX];
-    if (name == NULL) {
+    if (sname == NULL && name == NULL) {
         dx_label(p, label, sizeof label);
         memset(name_buf, 0, sizeof name_buf);
         join(name_buf, sizeof name_buf, "d", label, "_mm", (const char *)NULL);
         name = name_buf;
     }
     if (!r->ok)
-        return add_undet(x, name, UNIT_MM, "D%g not determined: %s", p, r->why);
+        return sname != NULL ? add_undet_s(x, sname, UNIT_MM, "D%g not determined: %s", p, r->why)
+                             : add_undet(x, name, UNIT_MM, "D%g not determined: %s", p, r->why);
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
     if (!x->quiet) {
@@ -529,7 +531,7 @@ static enum sg_status add_dx_row(struct ctx *x, double p, const char name[SG_QNA
             fmt_into(note, sizeof note, "size at which %g %% is finer (%s interpolation on log10 D)", p,
                      x->interp_word);
     }
-    return add_value(x, name, UNIT_MM, r->value, note);
+    return sname != NULL ? add_value_s(x, sname, UNIT_MM, r->value, note) : add_value(x, name, UNIT_MM, r->value, note);
 }
 
 /* Adds d<x>_mm as add_dx_row, reading D at p from the curve. */
@@ -540,7 +542,7 @@ static enum sg_status add_dx(struct ctx *x, double p, const char name[SG_QNAME_M
     enum sg_status st = diameter_at(x, p, &r, why_buf);
     if (st != SG_OK)
         return st;
-    return add_dx_row(x, p, name, shown, &r);
+    return add_dx_row(x, p, NULL, name, shown, &r);
 }
 
 /* Percent finer between two bounds (lower B_ZERO: finer than upper); the
@@ -986,10 +988,10 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
     enum { N_DP = 6 };
     static const double dp_pct[N_DP] = {10.0, 15.0, 30.0, 50.0, 60.0, 85.0};
     static const struct {
-        char name[SG_QNAME_MAX];
+        struct sg_static_qname name;
         const char *shown;
-    } dp[N_DP] = {{"d10_mm", "10"}, {"d15_mm", "15"}, {"d30_mm", "30"},
-                  {"d50_mm", "50"}, {"d60_mm", "60"}, {"d85_mm", "85"}};
+    } dp[N_DP] = {{{"d10_mm"}, "10"}, {{"d15_mm"}, "15"}, {{"d30_mm"}, "30"},
+                  {{"d50_mm"}, "50"}, {{"d60_mm"}, "60"}, {{"d85_mm"}, "85"}};
     double dv[N_DP];
     enum sg_status dst[N_DP];
     sg_curve_diameters_at_sorted(curve, dp_pct, N_DP, dv, dst);
@@ -1002,10 +1004,10 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
              * and add_dx_row without their notes */
             const bool ok = dst[i] == SG_OK;
             d[i] = (struct reading){ok, ok ? dv[i] : (double)NAN, ""};
-            st = ok ? add_value(&x, dp[i].name, UNIT_MM, dv[i], "")
-                    : add_undet(&x, dp[i].name, UNIT_MM, "D%g not determined", dp_pct[i]);
+            st = ok ? add_value_s(&x, &dp[i].name, UNIT_MM, dv[i], "")
+                    : add_undet_s(&x, &dp[i].name, UNIT_MM, "D%g not determined", dp_pct[i]);
         } else if ((st = dx_reading(&x, dp_pct[i], dv[i], dst[i], &d[i], d_why[i])) == SG_OK) {
-            st = add_dx_row(&x, dp_pct[i], dp[i].name, dp[i].shown, &d[i]);
+            st = add_dx_row(&x, dp_pct[i], &dp[i].name, NULL, dp[i].shown, &d[i]);
         }
         if (st != SG_OK)
             return st;
