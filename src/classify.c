@@ -316,17 +316,22 @@ static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], co
 #endif
     ;
 
+/* The note of an undetermined row: fmt formatted, or empty when quiet. */
+static void undet_note(const struct ctx *x, char note[SG_QNOTE_MAX], const char *fmt, va_list ap)
+{
+    note[0] = '\0';
+    if (!x->quiet)
+        (void)vsnprintf(note, SG_QNOTE_MAX, fmt, ap);
+}
+
 static enum sg_status add_undet(struct ctx *x, const char name[SG_QNAME_MAX], const char unit[SG_QUNIT_MAX], const char *fmt,
                                 ...)
 {
     char note[SG_QNOTE_MAX];
-    note[0] = '\0';
-    if (!x->quiet) {
-        va_list ap;
-        va_start(ap, fmt);
-        (void)vsnprintf(note, sizeof note, fmt, ap);
-        va_end(ap);
-    }
+    va_list ap;
+    va_start(ap, fmt);
+    undet_note(x, note, fmt, ap);
+    va_end(ap);
     return sg_result_new_quantity(x->res, name, unit, note) != NULL ? SG_OK : nomem(x);
 }
 
@@ -353,13 +358,10 @@ static enum sg_status add_undet_s(struct ctx *x, const struct sg_static_qname *n
                                   const char *fmt, ...)
 {
     char note[SG_QNOTE_MAX];
-    note[0] = '\0';
-    if (!x->quiet) {
-        va_list ap;
-        va_start(ap, fmt);
-        (void)vsnprintf(note, sizeof note, fmt, ap);
-        va_end(ap);
-    }
+    va_list ap;
+    va_start(ap, fmt);
+    undet_note(x, note, fmt, ap);
+    va_end(ap);
     return sg_result_new_quantity_static(x->res, name, unit, note) != NULL ? SG_OK : nomem(x);
 }
 

@@ -175,6 +175,21 @@ static enum sg_status blank_for(const struct sg_reading_row *r, double temp_c, c
     return SG_OK;
 }
 
+/* Appends a sedimentation point on the curve with its Stokes diameter and
+ * percent of the whole sample (the fields a Monte Carlo draw reads); the
+ * caller fills the rest. NULL when out of memory. */
+static struct sg_point *sed_point(struct sg_result *res, enum sg_source source, unsigned line, double diameter_mm,
+                                  double percent_finer)
+{
+    struct sg_point *p = sg_result_new_point(res, source, line);
+    if (p != NULL) {
+        p->diameter_mm = diameter_mm;
+        p->percent_finer = percent_finer;
+        p->on_curve = true;
+    }
+    return p;
+}
+
 static enum sg_status add_hydrometer_points(const struct sg_record *rec, const struct sg_constants *k,
                                             double scale_pct, bool values_only, struct sg_result *res,
                                             struct sg_error *err)
@@ -215,12 +230,10 @@ static enum sg_status add_hydrometer_points(const struct sg_record *rec, const s
         st = sg_hydrometer_reduce_shared(&in, &sh, &hp, err);
         if (st != SG_OK)
             return locate(err, st, r->pos);
-        struct sg_point *p = sg_result_new_point(res, SG_SOURCE_HYDROMETER, r->pos.line);
+        struct sg_point *p =
+            sed_point(res, SG_SOURCE_HYDROMETER, r->pos.line, hp.diameter_mm, hp.percent_specimen * scale_pct / 100.0);
         if (p == NULL)
             return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
-        p->diameter_mm = hp.diameter_mm;
-        p->percent_finer = hp.percent_specimen * scale_pct / 100.0;
-        p->on_curve = true;
         if (values_only)
             continue; /* the rest stays NaN (sg_reduce_options) */
         p->percent_specimen = hp.percent_specimen;
@@ -278,12 +291,10 @@ static enum sg_status add_pipette_points(const struct sg_record *rec, const stru
                                     "solids was not subtracted (give 0 if none was used)");
         if (st != SG_OK)
             return locate(err, st, r->pos);
-        struct sg_point *p = sg_result_new_point(res, SG_SOURCE_PIPETTE, r->pos.line);
+        struct sg_point *p =
+            sed_point(res, SG_SOURCE_PIPETTE, r->pos.line, pp.diameter_mm, pp.percent_specimen * scale_pct / 100.0);
         if (p == NULL)
             return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
-        p->diameter_mm = pp.diameter_mm;
-        p->percent_finer = pp.percent_specimen * scale_pct / 100.0;
-        p->on_curve = true;
         if (values_only)
             continue; /* the rest stays NaN (sg_reduce_options) */
         p->percent_specimen = pp.percent_specimen;
