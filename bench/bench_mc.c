@@ -5,10 +5,13 @@
  * with clock_gettime(CLOCK_MONOTONIC): best and median of several runs
  * (5 of 10 000 draws, 3 of 1 000 000), since other work on the machine
  * only ever slows a run down.
- * Usage: bench_mc [threads] (default: the online processors). Prints one
- * "bench_mc: ..." line per figure; the targets are 50 ms for 10 000 draws
- * and 3 s for 1 000 000 draws on 2 cores, judged on the best run. Exit 0
- * unless a run fails. */
+ * Usage: bench_mc [threads [draws]] (threads default: the online
+ * processors). Prints one "bench_mc: ..." line per figure; the targets are
+ * 50 ms for 10 000 draws and 3 s for 1 000 000 draws on 2 cores, judged on
+ * the best run. With draws, only one run of that many draws of the record
+ * with sieves, and nothing else: for counting instructions per draw, e.g.
+ * valgrind --tool=callgrind build/bench/bench_mc 1 20000 (DEVELOPERS.md).
+ * Exit 0 unless a run fails. */
 #include <gsl/gsl_errno.h>
 #include <stdbool.h>
 #include <stdio.h>
@@ -181,6 +184,25 @@ int main(int argc, char **argv)
             return 2;
         }
         threads = (unsigned)t;
+    }
+    if (argc > 2) { /* one run, for a profiler */
+        char *end = NULL;
+        const unsigned long long n = strtoull(argv[2], &end, 10);
+        if (end == argv[2] || *end != '\0' || n < 2 || n > 10000000ull) {
+            fprintf(stderr, "bench_mc: draws must be 2-10000000, got '%s'\n", argv[2]);
+            return 2;
+        }
+        struct sg_record rec;
+        if (build_record(&rec, true) != 0) {
+            fprintf(stderr, "bench_mc: out of memory\n");
+            return 2;
+        }
+        double s = 0.0;
+        const int rc = run(&rec, (size_t)n, threads, &s);
+        if (rc == 0)
+            printf("bench_mc: %llu draws, %u threads: %.3f s\n", n, threads, s);
+        sg_record_release(&rec);
+        return rc == 0 ? 0 : 1;
     }
     int rc = bench_record(true, threads, true);
     if (rc == 0)
