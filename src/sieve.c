@@ -31,7 +31,8 @@ enum sg_status sg_sieve_reduce(const struct sg_sieve_row *rows, size_t n, double
                                 r->retained_g);
         out[i] = (struct sg_sieve_line){.aperture_mm = r->aperture_mm,
                                         .retained_g = r->retained_g,
-                                        .line = r->pos.line};
+                                        .line = r->pos.line,
+                                        .col = r->pos.col};
     }
     /* records list the stack from the top; sort only when they do not
      * (by_aperture_desc(a, b) <= 0 written out: it runs in every Monte
@@ -44,7 +45,7 @@ enum sg_status sg_sieve_reduce(const struct sg_sieve_row *rows, size_t n, double
     double cmr = 0.0;
     for (size_t i = 0; i < n; i++) {
         if (i > 0 && out[i].aperture_mm == out[i - 1].aperture_mm)
-            return sg_error_set(err, SG_EINVAL, out[i].line, 0,
+            return sg_error_set(err, SG_EINVAL, out[i].line, out[i].col,
                                 "sieve aperture %g mm appears twice (also on line %u; merge the rows)",
                                 out[i].aperture_mm, out[i - 1].line);
         cmr += out[i].retained_g;
@@ -52,7 +53,7 @@ enum sg_status sg_sieve_reduce(const struct sg_sieve_row *rows, size_t n, double
         out[i].percent_retained = 100.0 * out[i].retained_g / total_mass_g;
         out[i].percent_passing = 100.0 * (total_mass_g - cmr) / total_mass_g;
         if (out[i].aperture_mm > SG_SIEVE_PAN_MM && cmr > total_mass_g * (1.0 + 1e-9))
-            return sg_error_set(err, SG_EINVAL, out[i].line, 0,
+            return sg_error_set(err, SG_EINVAL, out[i].line, out[i].col,
                                 "cumulative retained mass %g g on the %g mm sieve exceeds the dry mass "
                                 "%g g (check the masses and the dry mass)",
                                 cmr, out[i].aperture_mm, total_mass_g);

@@ -95,6 +95,7 @@ Test(sieve, duplicate_aperture)
     cr_assert_eq(e.code, SG_EINVAL);
     cr_assert(strstr(e.msg, "2 mm appears twice") != NULL, "%s", e.msg);
     cr_assert(e.line == 8 || e.line == 12, "line %u", e.line);
+    cr_assert_eq(e.col, 7, "col %u", e.col);
     /* two pans are a duplicate too */
     const struct sg_sieve_row pans[] = {row(0.075, 40.0, 8), row(0.0, 5.0, 9), row(0.0, 6.0, 10)};
     cr_assert_eq(sg_sieve_reduce(pans, 3, 400.0, out, &e), SG_EINVAL);
@@ -108,6 +109,7 @@ Test(sieve, mass_exceeding_total)
     struct sg_error e;
     cr_assert_eq(sg_sieve_reduce(rows, 3, 400.0, out, &e), SG_EINVAL);
     cr_assert_eq(e.line, 6);
+    cr_assert_eq(e.col, 7, "the error points at the sieve's aperture, not column 0 (col %u)", e.col);
     cr_assert(strstr(e.msg, "exceeds the dry mass 400 g") != NULL, "%s", e.msg);
     /* exactly the total is fine (all retained, 0 % passing) */
     const struct sg_sieve_row all[] = {row(2.0, 150.0, 5), row(0.425, 250.0, 6)};

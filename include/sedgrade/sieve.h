@@ -17,7 +17,7 @@ struct sg_sieve_line {
     double cumulative_retained_g;  /* this sieve and all coarser ones */
     double percent_retained;       /* of the total mass */
     double percent_passing;        /* 100 (M - CMR) / M */
-    unsigned line;                 /* input line */
+    unsigned line, col;            /* input line, and column of the aperture */
 };
 
 /* Reduces n rows (any order) against total_mass_g (the dry mass the
