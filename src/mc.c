@@ -584,10 +584,41 @@ static bool is_class_row_quantity(const char *name)
     return false;
 }
 
+/* Appends text to q's note after "; ". When it does not fit whole, it is
+ * cut after its last complete item (a class and its probability, up to
+ * a "%, ") and ends in "...", so that a note never stops inside a word
+ * or a number; the probability rows (usda_texture_p_...) keep every class.
+ * Without room for even its first item the text is left out. */
 static void note_append(struct sg_quantity *q, const char *text)
 {
-    const size_t used = strlen(q->note);
-    (void)snprintf(q->note + used, sizeof q->note - used, "%s%s", used ? "; " : "", text);
+    static const char more[] = "...";
+    const size_t used = strlen(q->note), size = sizeof q->note;
+    const char *sep = used ? "; " : "";
+    if (used + strlen(sep) >= size)
+        return;
+    const size_t room = size - 1 - used - strlen(sep); /* characters that fit */
+    const size_t len = strlen(text);
+    if (len <= room) {
+        char *at = q->note + used;
+        memcpy(at, sep, strlen(sep));
+        memcpy(at + strlen(sep), text, len + 1);
+        return;
+    }
+    size_t keep = 0; /* text[0..keep) ends with ", " */
+    for (const char *c = strstr(text, ", "); c != NULL; c = strstr(c + 1, ", ")) {
+        if (c == text || c[-1] != '%')
+            continue; /* inside a class name ("not applicable, fine-grained") */
+        const size_t end = (size_t)(c - text) + 2;
+        if (end + strlen(more) > room)
+            break;
+        keep = end;
+    }
+    if (keep == 0)
+        return;
+    char *at = q->note + used;
+    memcpy(at, sep, strlen(sep));
+    memcpy(at + strlen(sep), text, keep);
+    memcpy(at + strlen(sep) + keep, more, sizeof more); /* with its '\0' */
 }
 
 static const char *class_label(const char *text)
@@ -692,7 +723,7 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
     enum sg_status st = SG_OK;
     for (const struct follow *f = p->follow, *end = f + p->n_follow; f < end; f++) {
         struct sg_quantity *q = &res->quantities[f->q];
-        char buf[SG_QNOTE_MAX];
+        char buf[4 * SG_QNOTE_MAX]; /* longer than a note: note_append cuts it */
         if (f->kind == Q_UNDET) {
             const size_t mq = (size_t)tot[f->slot].n;
             if (mq == 0)

@@ -472,6 +472,70 @@ Test(run, outputs_on_a_full_record)
     sg_record_release(&rec);
 }
 
+/* Each class named in a usda_texture_p_ row (its note quotes the class). */
+static size_t texture_classes(const struct sg_result *res, char cls[][64], size_t max)
+{
+    size_t n = 0;
+    for (size_t i = 0; i < res->n_quantities && n < max; i++) {
+        const struct sg_quantity *q = &res->quantities[i];
+        const char *a = strchr(q->note, '\''), *b = a ? strchr(a + 1, '\'') : NULL;
+        if (strncmp(q->name, "usda_texture_p_", 15) == 0 && b != NULL)
+            (void)snprintf(cls[n++], 64, "%.*s", (int)(b - a - 1), a + 1);
+    }
+    return n;
+}
+
+/* A categorical row's Monte Carlo note is never cut inside a word or a
+ * number (the demo's long texture and frost-screen notes once ended in
+ * "frost s" and "clay loam 27.6 %, "): it lists every class, or ends after
+ * a whole class with "...". */
+Test(run, class_notes_are_whole_or_cut_after_a_class)
+{
+    struct sg_record rec;
+    full_record(&rec);
+    /* its texture is near class boundaries: three classes occur */
+    struct sg_result res;
+    reduce(&rec, &res);
+    mc(&rec, &res, NULL, 4000, 11, 2);
+    char cls[8][64];
+    const size_t n = texture_classes(&res, cls, 8);
+    const char *note = qty(&res, "usda_texture")->note;
+    cr_assert(n >= 2, "%zu classes: the test needs a split texture", n);
+    for (size_t i = 0; i < n; i++)
+        cr_assert(strstr(note, cls[i]) != NULL, "class '%s' missing from: %s", cls[i], note);
+    for (size_t i = 0; i < res.n_quantities; i++) {
+        const char *t = res.quantities[i].note, *mcp = strstr(t, "Monte Carlo class probabilities");
+        if (mcp != NULL)
+            cr_assert(t[strlen(t) - 1] == '%', "%s: %s", res.quantities[i].name, t);
+    }
+    sg_result_release(&res);
+
+    /* a nominal note that leaves room for about one class: the list is cut
+     * after a whole class, or left out when not even one fits */
+    for (size_t room = 20; room <= 120; room += 10) {
+        reduce(&rec, &res);
+        struct sg_quantity *tex = (struct sg_quantity *)qty(&res, "usda_texture");
+        const size_t fill = SG_QNOTE_MAX - 1 - 2 - room;
+        memset(tex->note, 'x', fill);
+        tex->note[fill] = '\0';
+        mc(&rec, &res, NULL, 4000, 11, 2);
+        tex = (struct sg_quantity *)qty(&res, "usda_texture");
+        const size_t len = strlen(tex->note);
+        cr_assert(len < SG_QNOTE_MAX);
+        if (len > fill) {
+            cr_assert(strncmp(tex->note + fill, "; Monte Carlo class probabilities:", 34) == 0, "%s",
+                      tex->note + fill);
+            const bool whole = tex->note[len - 1] == '%';
+            const bool cut = strcmp(tex->note + len - 6, "%, ...") == 0;
+            cr_assert(whole || cut, "room %zu: %s", room, tex->note + fill);
+        } else {
+            cr_assert_eq(len, fill, "room %zu: a note shorter than the nominal one", room);
+        }
+        sg_result_release(&res);
+    }
+    sg_record_release(&rec);
+}
+
 Test(run, not_determined_in_some_draws)
 {
     /* three readings whose finest point is near 10 % finer: D10 is reached

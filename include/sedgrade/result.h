@@ -48,7 +48,7 @@ struct sg_point {
 #define SG_QNAME_MAX 40
 #define SG_QUNIT_MAX 16
 #define SG_QTEXT_MAX 256 /* room for qc_flags, every QC flag name joined by '|' */
-#define SG_QNOTE_MAX 240
+#define SG_QNOTE_MAX 512 /* a note and the Monte Carlo class probabilities after it */
 
 /* One summary quantity (a row of <id>.summary.csv). */
 struct sg_quantity {
