@@ -674,6 +674,28 @@ static void slug(char *dst, size_t size, const char *text)
     dst[n] = '\0';
 }
 
+/* The name of the row that holds the probability of class text of the
+ * quantity qname: "<qname>_p_<slug of text>". */
+static void class_row_name(char name[SG_QNAME_MAX], const char *qname, const char *text)
+{
+    char s[SG_QNAME_MAX];
+    slug(s, sizeof s, text);
+    (void)snprintf(name, SG_QNAME_MAX, "%.16s_p_%.20s", qname, s);
+    for (size_t n = strlen(name); n > 0 && name[n - 1] == '_'; n--)
+        name[n - 1] = '\0'; /* a slug cut after a separator */
+}
+
+bool sg_mc_class_probability(const struct sg_result *res, const char *quantity, const char *text, double *pct)
+{
+    char name[SG_QNAME_MAX];
+    class_row_name(name, quantity, text);
+    const struct sg_quantity *q = sg_result_quantity(res, name);
+    if (q == NULL || !q->determined || q->is_text)
+        return false;
+    *pct = q->value;
+    return true;
+}
+
 /* "Monte Carlo class probabilities: a 72.0 %, b 28.0 %" into buf. */
 static void class_note(const struct cat_table *t, size_t *idx, size_t ok_draws, const char *lead, char *buf,
                        size_t size)
@@ -780,11 +802,8 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
         const struct cat_table *t = &cats[f->cat];
         order_classes(t, idx);
         for (size_t j = 0; j < t->n && st == SG_OK; j++) {
-            char name[SG_QNAME_MAX], s[SG_QNAME_MAX], note[SG_QNOTE_MAX];
-            slug(s, sizeof s, t->text[idx[j]]);
-            (void)snprintf(name, sizeof name, "%.16s_p_%.20s", qname, s);
-            for (size_t n = strlen(name); n > 0 && name[n - 1] == '_'; n--)
-                name[n - 1] = '\0'; /* a slug cut after a separator */
+            char name[SG_QNAME_MAX], note[SG_QNOTE_MAX];
+            class_row_name(name, qname, t->text[idx[j]]);
             (void)snprintf(note, sizeof note, "Monte Carlo probability of %s '%s' (percent of %zu draws)",
                            qname, class_label(t->text[idx[j]]), ok_draws);
             st = sg_result_add_value(res, name, "%", 100.0 * (double)t->count[idx[j]] / (double)ok_draws, note);

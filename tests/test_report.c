@@ -15,6 +15,7 @@
 
 #include "sedgrade/axis.h"
 #include "sedgrade/calibio.h"
+#include "sedgrade/mc.h"
 #include "sedgrade/plot.h"
 #include "sedgrade/recordio.h"
 #include "sedgrade/reduce.h"
@@ -26,6 +27,7 @@
 static char dir[64];
 static struct sg_record rec;
 static struct sg_result res;
+static struct sg_constants consts; /* the loaded record's, from the register */
 
 /* Loads and reduces one demo record with the demo register. */
 static void load(const char *name)
@@ -35,10 +37,9 @@ static void load(const char *name)
     (void)snprintf(path, sizeof path, "%s%s", DEMO, name);
     sg_record_release(&rec);
     cr_assert_eq(sg_recordio_load(path, &rec, NULL, &e), SG_OK, "%s: %s", name, e.msg);
-    struct sg_constants k;
-    sg_constants_from_record(&rec, &k);
-    cr_assert_eq(sg_calibio_resolve(REGISTER, &rec, &k, &e), SG_OK, "%s: %s", name, e.msg);
-    cr_assert_eq(sg_reduce(&rec, &k, NULL, &res, &e), SG_OK, "%s: %s", name, e.msg);
+    sg_constants_from_record(&rec, &consts);
+    cr_assert_eq(sg_calibio_resolve(REGISTER, &rec, &consts, &e), SG_OK, "%s: %s", name, e.msg);
+    cr_assert_eq(sg_reduce(&rec, &consts, NULL, &res, &e), SG_OK, "%s: %s", name, e.msg);
 }
 
 static void setup(void)
@@ -306,6 +307,52 @@ Test(report, monte_carlo_intervals_shown)
     (void)snprintf(want, sizeof want, "[%s\xe2\x80\x93%s]", lo, hi);
     contains(t, want);
     free(t);
+}
+
+static void check_layout(const char *pdf);
+
+/* With a Monte Carlo run the categorical results carry the probability of
+ * the class given, the USCS group is the symbol the Atterberg limits give
+ * (KV-BH07-U4 gives LL and PL, and is fine-grained), Skempton's activity is
+ * shown with its interval, and nothing overlaps. */
+Test(report, class_probabilities_group_symbol_and_activity_shown)
+{
+    NEED_POPPLER();
+    sg_result_release(&res);
+    sg_result_init(&res);
+    load("KV-BH07-U4.csv");
+    struct sg_error e;
+    const struct sg_mc_options o = {.draws = 2000, .seed = 3, .threads = 2};
+    cr_assert_eq(sg_mc_run(&rec, &consts, NULL, &o, &res, &e), SG_OK, "%s", e.msg);
+    const struct sg_quantity *tex = sg_result_quantity(&res, "usda_texture");
+    const struct sg_quantity *sym = sg_result_quantity(&res, "uscs_symbol");
+    cr_assert(tex != NULL && tex->determined && sym != NULL && sym->determined);
+    double p_tex = -1.0, p_sym = -1.0;
+    cr_assert(sg_mc_class_probability(&res, "usda_texture", tex->text, &p_tex));
+    cr_assert(sg_mc_class_probability(&res, "uscs_symbol", sym->text, &p_sym));
+    cr_assert(p_tex > 0.0 && p_tex <= 100.0 && p_sym > 0.0 && p_sym <= 100.0);
+    cr_assert(!sg_mc_class_probability(&res, "usda_texture", "no such class", &p_tex));
+    char *t = write_and_read("classes.pdf");
+    char want[SG_QTEXT_MAX + 32];
+    if (p_tex >= 0.5 && p_tex < 99.5) {
+        (void)snprintf(want, sizeof want, "%s (%.0f %%)", tex->text, p_tex);
+        contains(t, want);
+    }
+    (void)snprintf(want, sizeof want, "%s (", sym->text);
+    contains(t, want);
+    contains(t, "class probabilities in parentheses");
+    contains(t, "Activity");
+    char lo[40], hi[40];
+    const struct sg_quantity *a = sg_result_quantity(&res, "activity");
+    cr_assert(a != NULL && a->has_u);
+    sg_axis_format_sig(a->low95, 2, lo, sizeof lo);
+    sg_axis_format_sig(a->high95, 2, hi, sizeof hi);
+    (void)snprintf(want, sizeof want, "[%s\xe2\x80\x93%s]", lo, hi);
+    contains(t, want);
+    free(t);
+    char p[160];
+    (void)snprintf(p, sizeof p, "%s/classes.pdf", dir);
+    check_layout(p);
 }
 
 Test(report, metadata_and_bytes_are_reproducible)

@@ -190,6 +190,13 @@ enum sg_status sg_mc_run(const struct sg_record *rec, const struct sg_constants 
                          const struct sg_reduce_options *opt, const struct sg_mc_options *mc,
                          struct sg_result *res, struct sg_error *err);
 
+/* The Monte Carlo probability, percent, of class text ("" = not
+ * determined) of the categorical quantity named quantity (one of
+ * SG_MC_CLASS_ROWS_FOR): the value of the row "<quantity>_p_<class>" that
+ * sg_mc_run added to res. False (pct untouched) when res holds no such row:
+ * no Monte Carlo run, another quantity, or a class no draw gave. */
+bool sg_mc_class_probability(const struct sg_result *res, const char *quantity, const char *text, double *pct);
+
 /* As sg_mc_run, and fills detail (may be NULL) with per-point statistics
  * (percent finer and diameter) and the count of refused draws. */
 enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constants *k,

@@ -10,6 +10,7 @@
 
 #include "io/draw.h"
 #include "sedgrade/axis.h"
+#include "sedgrade/mc.h"
 #include "sedgrade/plot.h"
 #include "sedgrade/qc.h"
 
@@ -275,7 +276,21 @@ static void qtext(const struct sg_result *res, const char *name, int sig, int de
         return;
     }
     if (q->is_text) {
-        (void)snprintf(buf, size, "%s", q->text);
+        double pct = 0.0;
+        if (!sg_mc_class_probability(res, name, q->text, &pct)) {
+            (void)snprintf(buf, size, "%s", q->text);
+            return;
+        }
+        /* the Monte Carlo probability of the class given, in whole percent
+         * (never rounded to 0 or 100 unless it is) */
+        char p[16];
+        if (pct > 0.0 && pct < 0.5)
+            (void)snprintf(p, sizeof p, "< 1 %%");
+        else if (pct >= 99.5 && pct < 100.0)
+            (void)snprintf(p, sizeof p, "> 99 %%");
+        else
+            (void)snprintf(p, sizeof p, "%.0f %%", pct);
+        (void)snprintf(buf, size, "%s (%s)", q->text, p);
         return;
     }
     char v[40], lo[40], hi[40];
@@ -327,7 +342,9 @@ static double block_results(const struct page *pg, double y, enum sg_axis_bands 
     bool mc = false;
     for (size_t i = 0; i < pg->res->n_quantities; i++)
         mc = mc || pg->res->quantities[i].has_u;
-    y = heading(cr, x1, y, mc ? "Results  (Monte Carlo 95 % intervals in brackets)" : "Results");
+    y = heading(cr, x1, y,
+                mc ? "Results  (Monte Carlo: 95 % intervals in brackets, class probabilities in parentheses)"
+                   : "Results");
     static const struct qrow dv[] = {
         {"d10_mm", "D10", "mm", 4, 0}, {"d15_mm", "D15", "mm", 4, 0}, {"d30_mm", "D30", "mm", 4, 0},
         {"d50_mm", "D50", "mm", 4, 0}, {"d60_mm", "D60", "mm", 4, 0}, {"d85_mm", "D85", "mm", 4, 0},
@@ -351,11 +368,18 @@ static double block_results(const struct page *pg, double y, enum sg_axis_bands 
         {"usda_clay_pct", "Clay < 0.002", "%", 0, 1},
         {"usda_texture", "Texture class", "", 0, 0},
     };
-    static const struct qrow cls[] = {
+    /* the ASTM D2487 group: the symbol with the Atterberg limits when the
+     * record gives them (a fine-grained group needs them), else the group
+     * from the grading alone; Skempton's activity when it was worked out */
+    const struct sg_quantity *sym = sg_result_quantity(pg->res, "uscs_symbol");
+    const bool by_symbol = sym != NULL && sym->determined;
+    const struct qrow cls[] = {
         {"iso_grading", "ISO 14688-2", "", 0, 0},
         {"uscs_grading", "ASTM D2487", "", 0, 0},
-        {"uscs_group", "USCS group", "", 0, 0},
+        {by_symbol ? "uscs_symbol" : "uscs_group", "USCS group", "", 0, 0},
+        {"activity", "Activity", "", 2, 0},
     };
+    const size_t n_cls = sg_result_quantity(pg->res, "activity") != NULL ? 4 : 3;
     double ya = caption(cr, x1, y, "Sizes in mm; Cu = D60/D10, Cc = D30\xc2\xb2/(D10\xc2\xb7" "D60)");
     ya = qcolumn(cr, pg->res, x1, ya, w1, 36.0, dv, sizeof dv / sizeof dv[0]);
 
@@ -376,7 +400,7 @@ static double block_results(const struct page *pg, double y, enum sg_axis_bands 
     double yc = caption(cr, x3, y, "USDA, % of the fraction < 2 mm");
     yc = qcolumn(cr, pg->res, x3, yc, w3, 64.0, usda, 4);
     yc = caption(cr, x3, yc, "Grading terms (screens)");
-    yc = qcolumn(cr, pg->res, x3, yc, w3, 64.0, cls, 3);
+    yc = qcolumn(cr, pg->res, x3, yc, w3, 64.0, cls, n_cls);
     double yy = ya;
     if (yb > yy)
         yy = yb;
