@@ -89,7 +89,8 @@ format:
 	clang-format -i $(LIB_SRC) $(CLI_SRC) $(TEST_SRC) include/sedgrade/*.h src/*.h src/io/*.h 2>/dev/null || true
 
 demo: $(PROG)
-	./$(PROG) reduce demo/records -o demo/out --calibration calibration --plot png --plot svg --report || test $$? -eq 1
+	./$(PROG) reduce demo/records -o demo/out --calibration calibration --plot png --plot svg --report \
+	    --mc 20000 --seed 1 || test $$? -eq 1
 
 bench: $(BENCH_BIN) $(PROG)
 	@bash bench/run.sh $(BUILD)

@@ -16,6 +16,7 @@
 #include <sys/stat.h>
 
 #include "sedgrade/axis.h"
+#include "sedgrade/mc.h"
 #include "sedgrade/plot.h"
 #include "sedgrade/recordio.h"
 #include "sedgrade/reduce.h"
@@ -250,6 +251,32 @@ Test(plot, pdf_chart_is_one_page_with_searchable_text)
     cr_assert(strstr(text, "Percent finer by mass") != NULL);
     cr_assert(strstr(text, "0.001") != NULL && strstr(text, "100") != NULL);
     cr_assert(strstr(text, "Silt") != NULL && strstr(text, "Gravel") != NULL, "ISO 14688-1 bands");
+    free(text);
+}
+
+/* After a Monte Carlo run the panel's USDA texture carries its class's
+ * probability, as in the report. */
+Test(plot, texture_shows_its_monte_carlo_probability)
+{
+    if (!have("pdftotext"))
+        cr_skip_test("poppler-utils not installed");
+    struct sg_error e;
+    const struct sg_mc_options o = {.draws = 2000, .seed = 5, .threads = 2};
+    cr_assert_eq(sg_mc_run(&rec, NULL, NULL, &o, &res, &e), SG_OK, "%s", e.msg);
+    const struct sg_quantity *tex = sg_result_quantity(&res, "usda_texture");
+    cr_assert(tex != NULL && tex->determined);
+    double pct = -1.0;
+    cr_assert(sg_mc_class_probability(&res, "usda_texture", tex->text, &pct));
+    char p[128], cmd[256], want[SG_QTEXT_MAX + 16];
+    path_in(p, sizeof p, "mc.pdf");
+    cr_assert_eq(sg_plot_write(&res, &rec, SG_PLOT_PDF, p, NULL), SG_OK);
+    (void)snprintf(cmd, sizeof cmd, "pdftotext '%s' -", p);
+    char *text = run(cmd);
+    if (pct >= 0.5 && pct < 99.5)
+        (void)snprintf(want, sizeof want, "%s (p = %.0f %%)", tex->text, pct);
+    else
+        (void)snprintf(want, sizeof want, "%s (p = ", tex->text);
+    cr_assert(strstr(text, want) != NULL, "'%s' not in %s", want, text);
     free(text);
 }
 

@@ -335,12 +335,12 @@ Test(report, class_probabilities_group_symbol_and_activity_shown)
     char *t = write_and_read("classes.pdf");
     char want[SG_QTEXT_MAX + 32];
     if (p_tex >= 0.5 && p_tex < 99.5) {
-        (void)snprintf(want, sizeof want, "%s (%.0f %%)", tex->text, p_tex);
+        (void)snprintf(want, sizeof want, "%s (p = %.0f %%)", tex->text, p_tex);
         contains(t, want);
     }
-    (void)snprintf(want, sizeof want, "%s (", sym->text);
+    (void)snprintf(want, sizeof want, "%s (p = ", sym->text);
     contains(t, want);
-    contains(t, "class probabilities in parentheses");
+    contains(t, "class probabilities as p");
     contains(t, "Activity");
     char lo[40], hi[40];
     const struct sg_quantity *a = sg_result_quantity(&res, "activity");

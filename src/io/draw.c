@@ -10,6 +10,7 @@
 #include <string.h>
 
 #include "sedgrade/curve.h"
+#include "sedgrade/mc.h"
 
 /* ---- palette: dark inks that stay distinct in grey print ---- */
 static const double INK[3] = {0.10, 0.10, 0.12};
@@ -768,6 +769,23 @@ static double panel_row(cairo_t *cr, double x, double y, double w, const char *l
     return y + 10.0;
 }
 
+void sg_draw_class_text(const struct sg_result *res, const struct sg_quantity *q, char *buf, size_t size)
+{
+    double pct = 0.0;
+    if (!sg_mc_class_probability(res, q->name, q->text, &pct)) {
+        (void)snprintf(buf, size, "%s", q->text);
+        return;
+    }
+    char p[16];
+    if (pct > 0.0 && pct < 0.5)
+        (void)snprintf(p, sizeof p, "< 1 %%");
+    else if (pct >= 99.5 && pct < 100.0)
+        (void)snprintf(p, sizeof p, "> 99 %%");
+    else
+        (void)snprintf(p, sizeof p, "%.0f %%", pct);
+    (void)snprintf(buf, size, "%s (p = %s)", q->text, p);
+}
+
 static void quantity_text(const struct sg_result *res, const char *name, int sig, int decimals, const char *unit,
                           char *buf, size_t size)
 {
@@ -777,7 +795,7 @@ static void quantity_text(const struct sg_result *res, const char *name, int sig
         return;
     }
     if (q->is_text) {
-        (void)snprintf(buf, size, "%s", q->text);
+        sg_draw_class_text(res, q, buf, size);
         return;
     }
     char num[40];

@@ -99,6 +99,12 @@ void sg_draw_fit_chart(cairo_t *cr, double x, double y, double w, double h, cons
 
 /* Reads "YYYY-MM-DD" dates as PDF dates "YYYY-MM-DDT00:00:00Z" into buf
  * (>= 24 bytes); a missing or malformed date gives 2000-01-01. */
+/* A categorical quantity's text, with the Monte Carlo probability of its
+ * class in whole percent when res holds it ("silty clay loam (p = 72 %)"; a
+ * probability under 0.5 % or from 99.5 % to under 100 % reads "< 1 %" or
+ * "> 99 %", never 0 or 100 unless it is). */
+void sg_draw_class_text(const struct sg_result *res, const struct sg_quantity *q, char *buf, size_t size);
+
 void sg_draw_pdf_date(const char *date, char *buf, size_t size);
 
 #endif

@@ -10,7 +10,6 @@
 
 #include "io/draw.h"
 #include "sedgrade/axis.h"
-#include "sedgrade/mc.h"
 #include "sedgrade/plot.h"
 #include "sedgrade/qc.h"
 
@@ -276,21 +275,7 @@ static void qtext(const struct sg_result *res, const char *name, int sig, int de
         return;
     }
     if (q->is_text) {
-        double pct = 0.0;
-        if (!sg_mc_class_probability(res, name, q->text, &pct)) {
-            (void)snprintf(buf, size, "%s", q->text);
-            return;
-        }
-        /* the Monte Carlo probability of the class given, in whole percent
-         * (never rounded to 0 or 100 unless it is) */
-        char p[16];
-        if (pct > 0.0 && pct < 0.5)
-            (void)snprintf(p, sizeof p, "< 1 %%");
-        else if (pct >= 99.5 && pct < 100.0)
-            (void)snprintf(p, sizeof p, "> 99 %%");
-        else
-            (void)snprintf(p, sizeof p, "%.0f %%", pct);
-        (void)snprintf(buf, size, "%s (%s)", q->text, p);
+        sg_draw_class_text(res, q, buf, size);
         return;
     }
     char v[40], lo[40], hi[40];
@@ -343,7 +328,7 @@ static double block_results(const struct page *pg, double y, enum sg_axis_bands 
     for (size_t i = 0; i < pg->res->n_quantities; i++)
         mc = mc || pg->res->quantities[i].has_u;
     y = heading(cr, x1, y,
-                mc ? "Results  (Monte Carlo: 95 % intervals in brackets, class probabilities in parentheses)"
+                mc ? "Results  (Monte Carlo: 95 % intervals in brackets, class probabilities as p)"
                    : "Results");
     static const struct qrow dv[] = {
         {"d10_mm", "D10", "mm", 4, 0}, {"d15_mm", "D15", "mm", 4, 0}, {"d30_mm", "D30", "mm", 4, 0},
