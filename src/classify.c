@@ -165,23 +165,41 @@ const char *sg_classify_usda_texture(double sand_pct, double silt_pct, double cl
 
 /* ---- grading terms ----------------------------------------------------- */
 
+static double limit_tol(double limit)
+{
+    return SG_CLASSIFY_LIMIT_TOL * fmax(fabs(limit), 1.0);
+}
+
+bool sg_classify_at_least(double x, double limit)
+{
+    return isfinite(x) && x >= limit - limit_tol(limit);
+}
+
+bool sg_classify_at_most(double x, double limit)
+{
+    return isfinite(x) && x <= limit + limit_tol(limit);
+}
+
 bool sg_classify_uscs_well_graded(bool is_gravel, double cu, double cc)
 {
     if (!isfinite(cu) || !isfinite(cc))
         return false;
     const double cu_min = is_gravel ? USCS_GW_CU_MIN : USCS_SW_CU_MIN;
-    return cu >= cu_min && cc >= USCS_CC_MIN && cc <= USCS_CC_MAX;
+    return sg_classify_at_least(cu, cu_min) && sg_classify_at_least(cc, USCS_CC_MIN) &&
+           sg_classify_at_most(cc, USCS_CC_MAX);
 }
 
 const char *sg_classify_iso_grading(double cu, double cc)
 {
-    if (!isfinite(cu) || !isfinite(cc) || cu < 1.0)
+    if (!isfinite(cu) || !isfinite(cc) || !sg_classify_at_least(cu, 1.0))
         return NULL;
-    if (cc < ISO_GAP_CC_MAX)
+    if (!sg_classify_at_least(cc, ISO_GAP_CC_MAX))
         return "gap-graded";
-    if (cu > ISO_MULTI_CU_MIN)
-        return cc > ISO_MULTI_CC_MIN && cc < ISO_MULTI_CC_MAX ? "multi-graded" : NULL;
-    if (cu >= ISO_EVEN_CU_MAX)
+    if (!sg_classify_at_most(cu, ISO_MULTI_CU_MIN))
+        return !sg_classify_at_most(cc, ISO_MULTI_CC_MIN) && !sg_classify_at_least(cc, ISO_MULTI_CC_MAX)
+                   ? "multi-graded"
+                   : NULL;
+    if (sg_classify_at_least(cu, ISO_EVEN_CU_MAX))
         return "medium-graded";
     return "even-graded";
 }
@@ -743,7 +761,7 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     const double fines = 100.0 * p0075.value / p75.value;
     const double gravel = 100.0 * (p75.value - p475.value) / p75.value;
     const double sand = 100.0 * (p475.value - p0075.value) / p75.value;
-    const bool is_gravel = gravel > sand;
+    const bool is_gravel = !sg_classify_at_most(gravel, sand); /* a tie is a sand */
     const char *kind = is_gravel ? "gravel" : "sand";
     char basis[120];
     basis[0] = '\0';
@@ -753,7 +771,7 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     char note[SG_QNOTE_MAX];
     note[0] = '\0';
 
-    if (fines >= USCS_FINE_GRAINED_MIN_PCT) {
+    if (sg_classify_at_least(fines, USCS_FINE_GRAINED_MIN_PCT)) {
         if (!x->quiet)
             fmt_into(note, sizeof note,
                      "ASTM D2487 fine-grained soil (fines %.1f %% >= 50 %%): grading terms apply to "
@@ -766,7 +784,7 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
                          "Atterberg limits (and organic content)%s",
                          fines, x->limits_given);
     }
-    if (fines > USCS_DUAL_MAX_PCT) {
+    if (!sg_classify_at_most(fines, USCS_DUAL_MAX_PCT)) {
         if (!x->quiet)
             fmt_into(note, sizeof note,
                      "ASTM D2487: with fines over 12 %% (%s) the soil is named by the plasticity of its "
@@ -790,7 +808,7 @@ static enum sg_status add_uscs(struct ctx *x, double cu, double cc)
     if ((st = add_text_s(x, &N_USCS_GRADING, well ? "well graded" : "poorly graded", note)) != SG_OK)
         return st;
     const char *sym = is_gravel ? (well ? "GW" : "GP") : (well ? "SW" : "SP");
-    if (fines < USCS_CLEAN_MAX_PCT) {
+    if (!sg_classify_at_least(fines, USCS_CLEAN_MAX_PCT)) {
         if (!x->quiet)
             fmt_into(note, sizeof note, "ASTM D2487 coarse-grained, fines %.1f %% < 5 %% (%s)", fines, basis);
         return add_text_s(x, &N_USCS_GROUP, sym, note);

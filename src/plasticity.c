@@ -7,20 +7,20 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "sedgrade/classify.h"
 #include "sedgrade/curve.h"
 #include "sedgrade/reduce.h"
 
-/* D2487 grading limits (METHODS.md 8.2). */
-#define USCS_GW_CU_MIN 4.0
-#define USCS_SW_CU_MIN 6.0
-#define USCS_CC_MIN 1.0
-#define USCS_CC_MAX 3.0
 /* Liquid limits outside this range are not credible test results, %
  * (common practice: natural soils lie within about 10-500 %). */
 #define LL_MAX_PCT 1000.0
 /* A point within this many percent of PI of the A-line counts as on it
  * (round-off in 0.73 (LL - 20); limits are reported to 1 %). */
 #define ON_LINE_TOL_PCT 1e-9
+/* The activity note gives A on the basis of the fraction finer than
+ * 0.425 mm when more than this much of the sample is coarser, % (a tenth
+ * of a percent: the precision the percentages are shown to). */
+#define ACTIVITY_BASIS_NOTE_PCT 0.05
 
 double sg_plasticity_a_line_pi(double ll_pct)
 {
@@ -90,7 +90,7 @@ const char *sg_plasticity_uscs_symbol(const struct sg_uscs_input *in, const char
         return NULL;
     }
     const bool limits = isfinite(in->ll_pct) && isfinite(in->pi_pct);
-    if (in->fines_pct >= SG_PLAST_FINE_GRAINED_MIN_PCT) {
+    if (sg_classify_at_least(in->fines_pct, SG_PLAST_FINE_GRAINED_MIN_PCT)) {
         if (!limits) {
             *why = need_limits;
             return NULL;
@@ -101,10 +101,10 @@ const char *sg_plasticity_uscs_symbol(const struct sg_uscs_input *in, const char
         *why = need_fractions;
         return NULL;
     }
-    const bool gravel = in->gravel_pct > in->sand_pct;
+    const bool gravel = !sg_classify_at_most(in->gravel_pct, in->sand_pct); /* a tie is a sand */
     /* the fines' kind: C for CL, CH and (5-12 %) CL-ML; CL-ML over 12 % gives the C-M pair */
     const char *fine = limits ? sg_plasticity_uscs_fine(in->ll_pct, in->pi_pct) : NULL;
-    if (in->fines_pct > SG_PLAST_DUAL_MAX_PCT) {
+    if (!sg_classify_at_most(in->fines_pct, SG_PLAST_DUAL_MAX_PCT)) {
         if (fine == NULL) {
             *why = need_limits;
             return NULL;
@@ -119,9 +119,8 @@ const char *sg_plasticity_uscs_symbol(const struct sg_uscs_input *in, const char
         *why = need_grading;
         return NULL;
     }
-    const bool well = in->cu >= (gravel ? USCS_GW_CU_MIN : USCS_SW_CU_MIN) && in->cc >= USCS_CC_MIN &&
-                      in->cc <= USCS_CC_MAX;
-    if (in->fines_pct < SG_PLAST_CLEAN_MAX_PCT)
+    const bool well = sg_classify_uscs_well_graded(gravel, in->cu, in->cc);
+    if (!sg_classify_at_least(in->fines_pct, SG_PLAST_CLEAN_MAX_PCT))
         return gravel ? (well ? "GW" : "GP") : (well ? "SW" : "SP");
     if (fine == NULL) {
         *why = need_limits;
@@ -161,9 +160,9 @@ const char *sg_plasticity_activity_class(double activity)
 {
     if (!isfinite(activity) || activity < 0.0)
         return NULL;
-    if (activity < SG_ACTIVITY_INACTIVE_MAX)
+    if (!sg_classify_at_least(activity, SG_ACTIVITY_INACTIVE_MAX))
         return "inactive";
-    if (activity > SG_ACTIVITY_ACTIVE_MIN)
+    if (!sg_classify_at_most(activity, SG_ACTIVITY_ACTIVE_MIN))
         return "active";
     return "normal";
 }
@@ -312,11 +311,14 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
         return undet(x, &N_BS5930_PLASTICITY, SG_QUNIT(""), "not determined: needs the liquid and plastic limits");
     }
     const enum sg_chart_zone z = sg_plasticity_chart_zone(ll, pi);
+    const double a_pi = sg_plasticity_a_line_pi(ll);
     if (!x->no_notes)
         (void)snprintf(note, sizeof note,
-                       "plasticity chart: LL %g %%, PI %g %%; A-line PI %.1f %% (0.73 (LL - 20)), U-line PI %.1f "
+                       "plasticity chart: LL %g %%, PI %g %%; A-line PI %.1f %% (0.73 (LL - 20))%s, U-line PI %.1f "
                        "%% (0.9 (LL - 8))%s",
-                       ll, pi, sg_plasticity_a_line_pi(ll), sg_plasticity_u_line_pi(ll),
+                       ll, pi, a_pi,
+                       a_pi < SG_PLAST_CLML_PI_MIN ? ", read by ASTM D2487 as PI 4 % where it lies lower" : "",
+                       sg_plasticity_u_line_pi(ll),
                        z == SG_CHART_ABOVE_U ? "; beyond the upper limit of natural soils: re-test the limits" : "");
     if ((st = text(x, &N_CASAGRANDE_CHART, sg_plasticity_zone_name(z), note)) != SG_OK)
         return st;
@@ -331,12 +333,16 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
     const char *term = sg_plasticity_bs5930_term(ll, &letter);
     if (term == NULL)
         return undet(x, &N_BS5930_PLASTICITY, SG_QUNIT(""), "not determined: liquid limit not credible");
-    /* "<M|C><letter>: <silt|clay> of <term> plasticity" (well within the text's size) */
+    /* "<M|C><letter>: <silt|clay> of <term> plasticity" (well within the
+     * text's size). BS 5930's chart divides clay from silt by the A-line
+     * itself: it has no PI 4 floor and no CL-ML band (those are ASTM
+     * D2487's), so a low-plasticity point above the line is a clay. */
     char t[SG_QTEXT_MAX] = "non-plastic";
     if (z != SG_CHART_NON_PLASTIC) {
-        const char *kind = z == SG_CHART_BELOW_A ? "silt" : "clay";
+        const bool silt = pi < a_pi - ON_LINE_TOL_PCT;
+        const char *kind = silt ? "silt" : "clay";
         const size_t lt = strlen(term);
-        t[0] = z == SG_CHART_BELOW_A ? 'M' : 'C';
+        t[0] = silt ? 'M' : 'C';
         t[1] = letter;
         memcpy(t + 2, ": ", 2);
         memcpy(t + 4, kind, 4);
@@ -346,7 +352,7 @@ static enum sg_status add_chart(struct ctx *x, double ll, double pi)
     }
     return text(x, &N_BS5930_PLASTICITY, t,
                 "BS 5930 plasticity by liquid limit (from memory): low < 35, intermediate 35-50, high 50-70, "
-                "very high 70-90, extremely high >= 90 %; C above the A-line, M below");
+                "very high 70-90, extremely high >= 90 %; C on or above the A-line, M below");
 }
 
 static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, double ll, double pi)
@@ -361,8 +367,8 @@ static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, doubl
     note[0] = '\0';
     if (isfinite(in.fines_pct) && !x->quiet) {
         const double f = in.fines_pct;
-        if (!isfinite(ll) && f >= SG_PLAST_CLEAN_MAX_PCT &&
-            (st = FLAG(x, "fines_without_limits", f >= SG_PLAST_FINE_GRAINED_MIN_PCT ? SG_SEVERITY_WARNING
+        if (!isfinite(ll) && sg_classify_at_least(f, SG_PLAST_CLEAN_MAX_PCT) &&
+            (st = FLAG(x, "fines_without_limits", sg_classify_at_least(f, SG_PLAST_FINE_GRAINED_MIN_PCT) ? SG_SEVERITY_WARNING
                                                                                      : SG_SEVERITY_INFO,
                        "fines %.1f %% of the fraction finer than 75 mm: the ASTM D2487 group needs the liquid and "
                        "plastic limits of the fines (add test,liquid_limit_pct and test,plastic_limit_pct)",
@@ -431,11 +437,22 @@ static enum sg_status add_activity(struct ctx *x, const struct sg_result *res, d
         return undet(x, &N_ACTIVITY_CLASS, SG_QUNIT(""), "not determined: no clay-size material");
     }
     const double a = pi / cf;
-    if (!x->no_notes)
-        (void)snprintf(note, sizeof note,
-                       "Skempton activity A = PI / clay fraction = %g / %.2f (clay: %% of the whole sample finer than "
-                       "0.002 mm)",
-                       pi, cf);
+    if (!x->no_notes) {
+        const int w = snprintf(note, sizeof note,
+                               "Skempton activity A = PI / clay fraction = %g / %.2f (clay: %% of the whole sample "
+                               "finer than 0.002 mm)",
+                               pi, cf);
+        /* the limits are measured on the fraction finer than 0.425 mm: with
+         * coarser material in the sample, say what A is on that basis too
+         * (the value stays Skempton's, on the whole sample, METHODS.md 9.2) */
+        const struct sg_quantity *q = sg_result_quantity(x->res, "passing_0_425_mm_pct");
+        if (w > 0 && (size_t)w < sizeof note && q != NULL && q->determined && !q->is_text && q->value > cf &&
+            q->value < 100.0 - ACTIVITY_BASIS_NOTE_PCT)
+            (void)snprintf(note + w, sizeof note - (size_t)w,
+                           "; the limits are of the fraction finer than 0.425 mm (%.1f %% of the sample): on that "
+                           "basis the clay fraction is %.1f %% and A = %.2f",
+                           q->value, 100.0 * cf / q->value, pi * q->value / (100.0 * cf));
+    }
     if ((st = value(x, &N_ACTIVITY, SG_QUNIT(""), a, note)) != SG_OK)
         return st;
     if ((a < SG_ACTIVITY_MINERAL_MIN || a > SG_ACTIVITY_MINERAL_MAX) &&

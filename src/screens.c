@@ -5,6 +5,7 @@
 #include <math.h>
 #include <stdio.h>
 
+#include "sedgrade/classify.h"
 #include "sedgrade/curve.h"
 #include "sedgrade/reduce.h"
 
@@ -15,7 +16,7 @@ double sg_screens_hazen_k_cm_s(double d10_mm)
 
 bool sg_screens_hazen_valid(double d10_mm)
 {
-    return isfinite(d10_mm) && d10_mm >= SG_HAZEN_D10_MIN_MM && d10_mm <= SG_HAZEN_D10_MAX_MM;
+    return sg_classify_at_least(d10_mm, SG_HAZEN_D10_MIN_MM) && sg_classify_at_most(d10_mm, SG_HAZEN_D10_MAX_MM);
 }
 
 enum sg_frost_class sg_screens_frost(double finer_0_02_mm_pct, bool uniform)
@@ -23,9 +24,9 @@ enum sg_frost_class sg_screens_frost(double finer_0_02_mm_pct, bool uniform)
     const double p = finer_0_02_mm_pct;
     const double possible = uniform ? SG_FROST_UNIFORM_POSSIBLE_PCT : SG_FROST_POSSIBLE_PCT;
     const double susceptible = uniform ? SG_FROST_UNIFORM_SUSCEPTIBLE_PCT : SG_FROST_SUSCEPTIBLE_PCT;
-    if (p >= susceptible)
+    if (sg_classify_at_least(p, susceptible))
         return SG_FROST_SUSCEPTIBLE;
-    if (p >= possible)
+    if (sg_classify_at_least(p, possible))
         return SG_FROST_POSSIBLY;
     return SG_FROST_NOT_SUSCEPTIBLE;
 }
@@ -89,7 +90,7 @@ static enum sg_status add_hazen(struct sg_result *res, bool quiet, struct sg_err
                            "empirical screen, not a design value: Hazen k = C D10^2, C = %g (cm/s)/mm^2, D10 %.3g mm "
                            "(%.2g m/s); for loose clean sands, D10 %g-%g mm%s",
                            SG_HAZEN_C_CM_S_PER_MM2, d10, k / 100.0, SG_HAZEN_D10_MIN_MM, SG_HAZEN_D10_MAX_MM,
-                           isfinite(cu) && cu >= SG_HAZEN_CU_NOTE ? "; Cu >= 5: not the uniform sand Hazen assumed"
+                           sg_classify_at_least(cu, SG_HAZEN_CU_NOTE) ? "; Cu >= 5: not the uniform sand Hazen assumed"
                                                                   : "");
     }
     struct sg_quantity *q = sg_result_new_quantity_static(res, &N_HAZEN_K_CM_S, SG_QUNIT("cm/s"), why);
@@ -111,7 +112,7 @@ static enum sg_status add_frost(struct sg_result *res, bool quiet, struct sg_err
         why = quiet ? "" : "not determined: the percent finer than 0.02 mm is not determined";
     } else {
         const double cu = sg_result_key(res, SG_KEY_CU);
-        const bool uniform = isfinite(cu) && cu < SG_FROST_UNIFORM_CU_MAX;
+        const bool uniform = isfinite(cu) && !sg_classify_at_least(cu, SG_FROST_UNIFORM_CU_MAX);
         class_name = sg_screens_frost_name(sg_screens_frost(p, uniform));
         if (!quiet)
             (void)snprintf(note, sizeof note,

@@ -184,6 +184,24 @@ Test(grading, uscs_limits)
     cr_assert(!sg_classify_uscs_well_graded(false, 8.0, NAN));
 }
 
+/* The limit comparisons count a value within 1e-9 (relative) of a limit
+ * as on it, and nothing further off (common practice: the tolerance only
+ * absorbs floating-point rounding). */
+Test(grading, limits_with_rounding_tolerance)
+{
+    cr_assert(sg_classify_at_least(0.6 / 0.1, 6.0)); /* 5.999999999999999 */
+    cr_assert(sg_classify_at_most(3.0000000000000004, 3.0));
+    cr_assert(sg_classify_at_least(100.0 * 4.85 / 97.0, 5.0));
+    cr_assert(!sg_classify_at_least(5.99999, 6.0));
+    cr_assert(!sg_classify_at_most(3.00001, 3.0));
+    cr_assert(sg_classify_at_least(0.0, 0.0) && sg_classify_at_most(0.0, 0.0));
+    cr_assert(!sg_classify_at_least(NAN, 1.0) && !sg_classify_at_most(NAN, 1.0));
+    cr_assert(!sg_classify_at_least(-INFINITY, 1.0) && !sg_classify_at_most(INFINITY, 1.0));
+    cr_assert(sg_classify_uscs_well_graded(false, 0.6 / 0.1, 1.5));
+    cr_assert(sg_classify_uscs_well_graded(true, 8.0 / 2.0 - 4e-16, 1.0 - 2e-16));
+    cr_assert_str_eq(sg_classify_iso_grading(0.6 / 0.1, 0.8), "medium-graded");
+}
+
 Test(grading, iso_14688_2_limits)
 {
     /* ISO 14688-2 (METHODS.md 7.3, 13.6 #56; limits from memory) */
@@ -674,6 +692,46 @@ Test(summary, uscs_dual_and_silty_and_fine_grained)
     uscs_case(nod10b, 2, &res);
     undet(&res, "uscs_grading", "Cu and Cc");
     undet(&res, "uscs_group", "Cu and Cc");
+    sg_result_release(&res);
+}
+
+/* A curve whose D-values or fines sit exactly on a D2487 limit: the values
+ * pass through log10 and back (Cu = 0.6 / 0.1 = 5.999999999999999, fines
+ * 100 x 4.85 / 97 = 4.999999999999999) and must still count as on the
+ * limit (ASTM D2487 Table 1: SW needs Cu >= 6 and 1 <= Cc <= 3, GW Cu >= 4;
+ * dual symbols for 5-12 % fines; METHODS.md 7.3, 8.2, rules from memory). */
+Test(summary, uscs_limits_met_exactly_through_the_curve)
+{
+    /* sand: D10 0.1, D30 0.3, D60 0.6 mm, 4 % fines: Cu 6, Cc 1.5 -> SW */
+    const struct sg_curve_point sw[] = {{0.075, 4.0, 0}, {0.1, 10.0, 0}, {0.3, 30.0, 0}, {0.6, 60.0, 0},
+                                        {4.75, 100.0, 0}};
+    struct sg_result res;
+    uscs_case(sw, 5, &res);
+    cr_assert_float_eq(val(&res, "cu"), 6.0, 1e-12);
+    cr_assert_str_eq(txt(&res, "uscs_grading"), "well graded");
+    cr_assert_str_eq(txt(&res, "uscs_group"), "SW");
+    cr_assert_str_eq(txt(&res, "iso_grading"), "medium-graded"); /* Cu 6: medium 6-15 */
+    sg_result_release(&res);
+    /* sand: D10 0.1, D30 0.3, D60 0.9 mm: Cu 9, Cc 0.09 / 0.09 = 1 -> SW */
+    const struct sg_curve_point cc1[] = {{0.075, 4.0, 0}, {0.1, 10.0, 0}, {0.3, 30.0, 0}, {0.9, 60.0, 0},
+                                         {4.75, 100.0, 0}};
+    uscs_case(cc1, 5, &res);
+    cr_assert_float_eq(val(&res, "cc"), 1.0, 1e-12);
+    cr_assert_str_eq(txt(&res, "uscs_group"), "SW");
+    sg_result_release(&res);
+    /* gravel: D10 2, D30 4, D60 8 mm, 4.9 % fines: Cu 4, Cc 1 -> GW */
+    const struct sg_curve_point gw[] = {{0.075, 4.9, 0}, {2.0, 10.0, 0}, {4.0, 30.0, 0}, {8.0, 60.0, 0},
+                                        {37.5, 100.0, 0}};
+    uscs_case(gw, 5, &res);
+    cr_assert_float_eq(val(&res, "cu"), 4.0, 1e-12);
+    cr_assert_str_eq(txt(&res, "uscs_group"), "GW");
+    sg_result_release(&res);
+    /* 3 % coarser than 75 mm and 4.85 % of the sample finer than 0.075 mm:
+     * fines 5 % of the fraction finer than 75 mm -> a dual symbol, not SW */
+    const struct sg_curve_point five[] = {{0.075, 4.85, 0}, {0.1, 10.0, 0}, {0.3, 30.0, 0}, {0.6, 60.0, 0},
+                                          {4.75, 90.0, 0},  {75.0, 97.0, 0}, {150.0, 100.0, 0}};
+    uscs_case(five, 7, &res);
+    undet(&res, "uscs_group", "SW-SM or SW-SC");
     sg_result_release(&res);
 }
 

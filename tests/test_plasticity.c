@@ -259,6 +259,60 @@ Test(summary, indices_activity_and_class)
     }
 }
 
+/* Below LL 25.5 the A-line lies under PI 4. ASTM D2487 reads it as PI 4
+ * there (ML below), and the chart's note says so; BS 5930's chart divides
+ * clay from silt by the A-line itself (no PI 4 floor, no CL-ML band), so
+ * LL 22, PI 3.9 is a clay of low plasticity there (both from memory,
+ * METHODS.md 8.2). */
+Test(summary, low_plasticity_below_pi_4)
+{
+    struct sg_record rec;
+    struct sg_result res;
+    limits(&rec, 22.0, 18.1, NAN);
+    run(&res, &rec, 10.0, false);
+    const struct sg_quantity *chart = qty(&res, "casagrande_chart");
+    cr_assert_str_eq(chart->text, "below A-line");
+    cr_assert(strstr(chart->note, "A-line PI 1.5 % (0.73 (LL - 20)), read by ASTM D2487 as PI 4 %") != NULL, "%s",
+              chart->note);
+    cr_assert_str_eq(sg_plasticity_uscs_fine(22.0, 22.0 - 18.1), "ML");
+    cr_assert_str_eq(qty(&res, "bs5930_plasticity")->text, "CL: clay of low plasticity");
+    sg_result_release(&res);
+    /* on the CL-ML band (LL 30, PI 6: A-line 7.3): D2487 ML, BS 5930 a silt */
+    limits(&rec, 30.0, 24.0, NAN);
+    run(&res, &rec, 10.0, false);
+    cr_assert_str_eq(qty(&res, "bs5930_plasticity")->text, "ML: silt of low plasticity");
+    cr_assert(strstr(qty(&res, "casagrande_chart")->note, "read by ASTM") == NULL);
+    sg_result_release(&res);
+}
+
+/* The limits are measured on the fraction finer than 0.425 mm: with 25 %
+ * of the sample coarser, the activity note also gives A on that basis
+ * (PI 20, clay 15 % of the sample, 75 % passing 0.425 mm: clay 20 % of
+ * that fraction, A = 1.00; the value stays PI / clay of the whole sample,
+ * 1.33, as METHODS.md 9.2 defines it). */
+Test(summary, activity_note_on_the_fraction_tested_for_limits)
+{
+    struct sg_record rec;
+    struct sg_result res;
+    struct sg_error e;
+    limits(&rec, 45.0, 25.0, NAN);
+    sg_result_init(&res);
+    cr_assert_eq(sg_result_add_value(&res, "clay_pct", "%", 15.0, ""), SG_OK);
+    cr_assert_eq(sg_result_add_value(&res, "passing_0_425_mm_pct", "%", 75.0, ""), SG_OK);
+    struct sg_reduce_options o = sg_reduce_options_default();
+    cr_assert_eq(sg_plasticity_summarise(&rec, &o, &res, &e), SG_OK, "%s", e.msg);
+    const struct sg_quantity *a = qty(&res, "activity");
+    cr_assert_float_eq(a->value, 20.0 / 15.0, 1e-12);
+    cr_assert(strstr(a->note, "(75.0 % of the sample): on that basis the clay fraction is 20.0 % and A = 1.00") !=
+                  NULL,
+              "%s", a->note);
+    sg_result_release(&res);
+    /* all of it finer than 0.425 mm: nothing to add */
+    run(&res, &rec, 15.0, false);
+    cr_assert(strstr(qty(&res, "activity")->note, "0.425") == NULL);
+    sg_result_release(&res);
+}
+
 Test(summary, consistency_flags)
 {
     struct sg_record rec;

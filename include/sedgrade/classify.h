@@ -91,9 +91,26 @@ enum sg_status sg_classify_summarise(const struct sg_curve *curve, const struct 
  * (values from -0.05 to 0 count as 0) or the sum is not positive. */
 const char *sg_classify_usda_texture(double sand_pct, double silt_pct, double clay_pct);
 
+/* Published limits (Cu >= 6, fines < 5 %, Cc <= 3, the Hazen window, ...)
+ * are compared with a relative tolerance: a value computed through log10
+ * and back (Cu = 0.6 / 0.1 comes out 5.999999999999999, a fines content
+ * 4.85 / 97 x 100 comes out 4.999999999999999) counts as on the limit, as
+ * the same value worked out by hand would. The tolerance is far below any
+ * difference a measurement can make. */
+#define SG_CLASSIFY_LIMIT_TOL 1e-9
+
+/* x >= limit, a value within SG_CLASSIFY_LIMIT_TOL x max(|limit|, 1) of the
+ * limit counting as equal to it; false for a non-finite x. */
+bool sg_classify_at_least(double x, double limit);
+
+/* x <= limit, with the same tolerance; false for a non-finite x. A strict
+ * "x > limit" is !sg_classify_at_most(x, limit) (for a finite x). */
+bool sg_classify_at_most(double x, double limit);
+
 /* ASTM D2487 grading of a coarse-grained soil (METHODS.md 7.3): well graded
  * when Cu >= 4 and 1 <= Cc <= 3 for a gravel, Cu >= 6 and 1 <= Cc <= 3 for a
- * sand; poorly graded otherwise (also for non-finite Cu or Cc). */
+ * sand; poorly graded otherwise (also for non-finite Cu or Cc). Limits as
+ * sg_classify_at_least. */
 bool sg_classify_uscs_well_graded(bool is_gravel, double cu, double cc);
 
 /* ISO 14688-2 grading term from Cu and Cc (METHODS.md 7.3; numeric limits
