@@ -852,6 +852,34 @@ Test(calibio, resolve_demo_records)
     sg_record_release(&rec);
 }
 
+/* A row's own blank comes first (README, "Reduction"): when every reading
+ * carries one, the register's blank line is not applied and its entry
+ * (RML-HD-02@2026-09-21 in the demo register) is not named among the
+ * calibrations used; one reading without a blank brings it back. */
+Test(calibio, blank_entry_named_only_when_a_reading_needs_it)
+{
+    struct sg_record rec;
+    struct sg_constants k;
+    struct sg_error err;
+    record_for(&rec, "RML-HD-02", "RML-CY-12", "RML-TH-06", "", 2026, 10, 14);
+    rec.scale = SG_SCALE_DENSITY;
+    const struct sg_reading_row with_blank = {.elapsed_min = 1.0, .reading = 20.0, .temp_c = 20.0,
+                                              .has_blank = true, .blank_reading = 2.5, .pos = {20, 9}};
+    cr_assert_eq(sg_record_add_reading(&rec, with_blank), SG_OK);
+    cr_assert_eq(sg_record_add_reading(&rec, with_blank), SG_OK);
+    cr_assert_eq(sg_calibio_resolve(DEMO_REGISTER, &rec, &k, &err), SG_OK, "%s", err.msg);
+    cr_assert_str_eq(k.calibration_used, "RML-HD-02@2025-06-16;RML-CY-12@2025-06-12;RML-TH-06@2025-10-06");
+    cr_assert(!k.has_blank_line);
+    struct sg_reading_row without = with_blank;
+    without.has_blank = false;
+    cr_assert_eq(sg_record_add_reading(&rec, without), SG_OK);
+    cr_assert_eq(sg_calibio_resolve(DEMO_REGISTER, &rec, &k, &err), SG_OK, "%s", err.msg);
+    cr_assert_str_eq(k.calibration_used,
+                     "RML-HD-02@2025-06-16;RML-HD-02@2026-09-21;RML-CY-12@2025-06-12;RML-TH-06@2025-10-06");
+    cr_assert(k.has_blank_line);
+    sg_record_release(&rec);
+}
+
 Test(calibio, resolve_refusals)
 {
     struct sg_record rec;

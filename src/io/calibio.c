@@ -2003,6 +2003,20 @@ static enum sg_status eval_in_force(struct resolver *rv, struct sg_calibio_slot 
     return SG_OK;
 }
 
+/* Whether the record may take a blank from the register's line: it has a
+ * reading without a blank of its own, or no readings yet (a row's blank
+ * comes first, so when every row has one the line is neither applied nor
+ * named among the calibrations used). */
+static bool reads_blank_line(const struct sg_record *rec)
+{
+    if (rec->n_readings == 0)
+        return true;
+    for (size_t i = 0; i < rec->n_readings; i++)
+        if (!rec->readings[i].has_blank)
+            return true;
+    return false;
+}
+
 static enum sg_status resolve_cylinder(struct resolver *rv, const char *id, struct sg_srcpos pos, double *area_mm2)
 {
     struct sg_calibio_slot *s = NULL;
@@ -2047,7 +2061,7 @@ static enum sg_status resolve_hydrometer(struct resolver *rv)
     /* The hydrometer's entries are named before its cylinder's. */
     add_used(rv, s, entry[SG_CAL_PART_DEPTH]);
     add_used(rv, s, entry[SG_CAL_PART_MENISCUS]);
-    if (entry[SG_CAL_PART_BLANK] >= 0)
+    if (entry[SG_CAL_PART_BLANK] >= 0 && reads_blank_line(rec))
         add_used(rv, s, entry[SG_CAL_PART_BLANK]);
     if ((st = resolve_cylinder(rv, cyl, cpos, &area)) != SG_OK ||
         (st = eval_in_force(rv, s, entry, SG_CAL_PART_DEPTH, area, pos, &res)) != SG_OK)
@@ -2066,7 +2080,7 @@ static enum sg_status resolve_hydrometer(struct resolver *rv)
         return st;
     k->meniscus_correction = res->value;
     k->meniscus_u = res->u;
-    if (entry[SG_CAL_PART_BLANK] >= 0) {
+    if (entry[SG_CAL_PART_BLANK] >= 0 && reads_blank_line(rec)) {
         if ((st = eval_in_force(rv, s, entry, SG_CAL_PART_BLANK, (double)NAN, pos, &res)) != SG_OK)
             return st;
         k->has_blank_line = true;
@@ -2123,13 +2137,14 @@ static void join_used(const struct resolver *rv, struct sg_constants *k)
 /* Whether a constant the reduction applies comes from the record itself
  * after the register was consulted: the depth line, meniscus or composite
  * correction of a hydrometer test that names no hydrometer, a composite
- * correction that no register blank line replaced, or the pipette volume of
+ * correction that no register blank line replaced and some reading without
+ * a blank of its own needs, or the pipette volume of
  * a pipette test that names no pipette. */
 static bool uses_inline(const struct sg_record *rec, const struct sg_constants *k)
 {
     if (rec->method == SG_METHOD_HYDROMETER)
         return (!rec->hydrometer[0] && (rec->has_depth_line || rec->has_meniscus || rec->has_composite)) ||
-               (rec->has_composite && k->has_blank_const);
+               (rec->has_composite && k->has_blank_const && reads_blank_line(rec));
     if (rec->method == SG_METHOD_PIPETTE)
         return !rec->pipette_id[0] && rec->has_pipette_volume;
     return false;
