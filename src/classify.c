@@ -594,13 +594,16 @@ static enum sg_status add_fraction_noted(struct ctx *x, const struct sg_static_q
                              basis->value);
         v = 100.0 * r.value / basis->value;
     }
-    if (v < NEGATIVE_FRACTION_PCT) {
-        char note[SG_QNOTE_MAX];
-        join(note, sizeof note, what, "; negative: the curve rises with falling size in this range (see the QC flags)",
-             (const char *)NULL);
-        return add_value_s(x, name, UNIT_PCT, v, note);
-    }
-    return add_value_s(x, name, UNIT_PCT, v, what);
+    /* the basis is named: a fraction of the whole sample, or (USDA) of the
+     * fraction finer than 2 mm, which what names already */
+    const char *whole = basis == NULL ? "; % of the whole sample" : "";
+    char note[SG_QNOTE_MAX];
+    if (v < NEGATIVE_FRACTION_PCT)
+        join(note, sizeof note, what, whole,
+             "; negative: the curve rises with falling size in this range (see the QC flags)", (const char *)NULL);
+    else
+        join(note, sizeof note, what, whole, (const char *)NULL);
+    return add_value_s(x, name, UNIT_PCT, v, note);
 }
 
 /* Adds a fraction of the whole sample (or, with basis > 0, of the part

@@ -732,6 +732,14 @@ Test(summary, uscs_limits_met_exactly_through_the_curve)
                                           {4.75, 90.0, 0},  {75.0, 97.0, 0}, {150.0, 100.0, 0}};
     uscs_case(five, 7, &res);
     undet(&res, "uscs_group", "SW-SM or SW-SC");
+    /* each fraction row names its basis: the whole sample (the D2487 rows
+     * too; the group itself uses the fraction finer than 75 mm), or, for the
+     * USDA separates, the fraction finer than 2 mm */
+    cr_assert(strstr(qty(&res, "uscs_fines_pct")->note, "% of the whole sample") != NULL);
+    cr_assert(strstr(qty(&res, "gravel_pct")->note, "% of the whole sample") != NULL);
+    cr_assert(strstr(qty(&res, "usda_sand_pct")->note, "% of the fraction finer than 2 mm") != NULL);
+    cr_assert(strstr(qty(&res, "usda_sand_pct")->note, "whole sample") == NULL);
+    cr_assert(strstr(qty(&res, "uscs_group")->note, "of the fraction finer than 75 mm") != NULL);
     sg_result_release(&res);
 }
 
