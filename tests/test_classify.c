@@ -737,9 +737,9 @@ Test(summary, uscs_limits_met_exactly_through_the_curve)
      * USDA separates, the fraction finer than 2 mm */
     cr_assert(strstr(qty(&res, "uscs_fines_pct")->note, "% of the whole sample") != NULL);
     cr_assert(strstr(qty(&res, "gravel_pct")->note, "% of the whole sample") != NULL);
-    cr_assert(strstr(qty(&res, "usda_sand_pct")->note, "% of the fraction finer than 2 mm") != NULL);
-    cr_assert(strstr(qty(&res, "usda_sand_pct")->note, "whole sample") == NULL);
-    cr_assert(strstr(qty(&res, "uscs_group")->note, "of the fraction finer than 75 mm") != NULL);
+    cr_assert(strstr(qty(&res, "usda_very_coarse_sand_pct")->note, "% of the fraction finer than 2 mm") != NULL);
+    cr_assert(strstr(qty(&res, "usda_very_coarse_sand_pct")->note, "whole sample") == NULL);
+    cr_assert(strstr(qty(&res, "uscs_grading")->note, "of the fraction finer than 75 mm") != NULL);
     sg_result_release(&res);
 }
 
