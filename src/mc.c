@@ -42,20 +42,23 @@ void sg_mc_budget_resolve(const struct sg_record *rec, const struct sg_constants
     }
     const struct sg_record_u *u = &rec->u;
     memset(b, 0, sizeof *b);
+    /* the defaults in reading units are per division: the register's, else
+     * one reading unit */
+    const double div = k->scale_division > 0.0 && isfinite(k->scale_division) ? k->scale_division : 1.0;
     if (u->reading >= 0.0 && isfinite(u->reading)) {
         b->reading_half_width = 0.0;
         b->reading = (struct sg_mc_input){u->reading, SG_MC_FROM_RECORD};
     } else {
-        b->reading_half_width = SG_MC_READING_RESOLUTION_HALF_WIDTH;
-        b->reading = (struct sg_mc_input){SG_MC_U_READING_REPEAT, SG_MC_FROM_DEFAULT};
+        b->reading_half_width = SG_MC_READING_RESOLUTION_HALF_WIDTH * div;
+        b->reading = (struct sg_mc_input){SG_MC_U_READING_REPEAT * div, SG_MC_FROM_DEFAULT};
     }
     b->temp_c = pick(u->temp_c, 0.0, SG_MC_U_TEMP_C);
     b->elapsed_min = pick(u->elapsed_min, 0.0, SG_MC_U_ELAPSED_MIN);
     b->mass_g = pick(u->mass_g, 0.0, SG_MC_U_MASS_G);
     b->particle_density_mg_m3 = pick(u->particle_density_mg_m3, 0.0, SG_MC_U_PARTICLE_DENSITY_MG_M3);
-    b->blank_row = pick(u->blank_reading, 0.0, SG_MC_U_BLANK);
-    b->blank_test = pick(u->blank_reading, k->blank_u, SG_MC_U_BLANK);
-    b->meniscus = pick(u->meniscus_correction, k->meniscus_u, SG_MC_U_MENISCUS);
+    b->blank_row = pick(u->blank_reading, 0.0, SG_MC_U_BLANK * div);
+    b->blank_test = pick(u->blank_reading, k->blank_u, SG_MC_U_BLANK * div);
+    b->meniscus = pick(u->meniscus_correction, k->meniscus_u, SG_MC_U_MENISCUS * div);
     const bool have_cov = k->depth_cov[0] > 0.0 && isfinite(k->depth_cov[0]) && isfinite(k->depth_cov[1]) &&
                           isfinite(k->depth_cov[2]) && k->depth_cov[2] >= 0.0;
     if (u->depth_mm >= 0.0 && isfinite(u->depth_mm)) {

@@ -870,6 +870,7 @@ Test(calibio, blank_entry_named_only_when_a_reading_needs_it)
     cr_assert_eq(sg_calibio_resolve(DEMO_REGISTER, &rec, &k, &err), SG_OK, "%s", err.msg);
     cr_assert_str_eq(k.calibration_used, "RML-HD-02@2025-06-16;RML-CY-12@2025-06-12;RML-TH-06@2025-10-06");
     cr_assert(!k.has_blank_line);
+    cr_assert_float_eq(k.scale_division, 0.5, 0.0); /* calibration/RML-HD-02.csv: division,0.5 */
     struct sg_reading_row without = with_blank;
     without.has_blank = false;
     cr_assert_eq(sg_record_add_reading(&rec, without), SG_OK);

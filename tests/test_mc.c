@@ -209,6 +209,32 @@ Test(budget, defaults_record_and_register)
     sg_record_release(&rec);
 }
 
+/* The defaults in divisions follow the hydrometer's division from the
+ * register (the demo lab's density hydrometer is read to 0.5 unit): the
+ * resolution half-width is half a division (GUM 4.3.7), the repeatability,
+ * blank and meniscus defaults the documented fractions of it (mc.h). */
+Test(budget, defaults_scale_with_the_division)
+{
+    struct sg_record rec;
+    single_point(&rec);
+    struct sg_constants k;
+    sg_constants_from_record(&rec, &k);
+    k.scale_division = 0.5;
+    struct sg_mc_budget b;
+    sg_mc_budget_resolve(&rec, &k, &b);
+    cr_assert_float_eq(b.reading_half_width, 0.25, 1e-15);
+    cr_assert_float_eq(b.reading.u, 0.125, 1e-15);
+    cr_assert_float_eq(b.blank_row.u, 0.25, 1e-15);
+    cr_assert_float_eq(b.blank_test.u, 0.25, 1e-15);
+    cr_assert_float_eq(b.meniscus.u, 0.125, 1e-15);
+    cr_assert_float_eq(b.temp_c.u, 0.2, 1e-15); /* not a reading-scale input */
+    k.scale_division = 0.0; /* unknown: one reading unit */
+    sg_mc_budget_resolve(&rec, &k, &b);
+    cr_assert_float_eq(b.reading_half_width, 0.5, 1e-15);
+    cr_assert_float_eq(b.meniscus.u, 0.25, 1e-15);
+    sg_record_release(&rec);
+}
+
 /* ---- GUM cross-check -------------------------------------------------------
  * JCGM 100 5.1.2: u_c^2(y) = sum (df/dx_i)^2 u^2(x_i) for independent
  * inputs; JCGM 101 7.6: u(y) is the standard deviation of the M draws. For a

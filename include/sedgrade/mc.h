@@ -36,13 +36,16 @@
  * volume, the thermometer's calibration offset, dispersion efficiency and
  * the model error of Stokes' law itself. */
 
-/* Hydrometer reading, per row: the scale is read to one division (one
- * reading unit on either scale), so the resolution error is rectangular with
- * half-width 0.5 division (GUM Type B, METHODS.md 11.1: u = 0.289), plus a
- * normal reading-repeatability term of 0.25 division (common practice:
- * reading the top of the meniscus in an opaque suspension; replace it with
- * the laboratory's own duplicate-reading figure). Combined u = 0.382
- * division. A record's u_reading replaces both terms (normal). */
+/* Hydrometer reading, per row: the scale is read to one division, so the
+ * resolution error is rectangular with half-width 0.5 division (GUM Type B,
+ * METHODS.md 11.1: u = 0.289 division), plus a normal reading-repeatability
+ * term of 0.25 division (common practice: reading the top of the meniscus
+ * in an opaque suspension; replace it with the laboratory's own
+ * duplicate-reading figure). Combined u = 0.382 division. A division is the
+ * register's `division` of the hydrometer (sg_constants scale_division),
+ * else one reading unit; the defaults below in divisions (reading, blank,
+ * meniscus) are multiplied by it. A record's u_reading replaces both
+ * reading terms (normal). */
 #define SG_MC_READING_RESOLUTION_HALF_WIDTH 0.5
 #define SG_MC_U_READING_REPEAT 0.25
 /* Suspension temperature, per row, C (common practice: a 0.1 C-graduated
@@ -57,12 +60,12 @@
 /* Particle density, per test, Mg/m3 (common practice for a measured value,
  * e.g. by small pyknometer; an assumed 2.65 deserves a larger value). */
 #define SG_MC_U_PARTICLE_DENSITY_MG_M3 0.02
-/* Blank (composite) reading, scale units: per row where the row gives its
+/* Blank (composite) reading, divisions: per row where the row gives its
  * own blank reading, per test where it comes from the record's
  * composite_correction or the register's blank line (common practice: half
  * a division; the register's blank_u, from its fit, is used when known). */
 #define SG_MC_U_BLANK 0.5
-/* Meniscus correction, per test, scale units (common practice: a quarter
+/* Meniscus correction, per test, divisions (common practice: a quarter
  * division; the register's meniscus_u is used when known). */
 #define SG_MC_U_MENISCUS 0.25
 /* Effective-depth line H = c0 + c1 R: bivariate normal with the register

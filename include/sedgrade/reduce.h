@@ -31,6 +31,7 @@ struct sg_constants {
     double thermometer_offset_c; /* added to every temperature read */
     bool has_scale_range;
     double scale_min, scale_max; /* hydrometer scale, reading units */
+    double scale_division;       /* hydrometer's smallest division, reading units (register); 0 if unknown */
     char calibration_used[256];  /* "instrument@date;..." or "inline" */
     /* Register findings to be shown as QC flags (overdue calibration, ...). */
     size_t n_notes;

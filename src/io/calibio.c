@@ -2096,6 +2096,8 @@ static enum sg_status resolve_hydrometer(struct resolver *rv)
         k->scale_min = ins->range_min;
         k->scale_max = ins->range_max;
     }
+    if (ins->has_division && ins->division > 0.0)
+        k->scale_division = ins->division;
     return SG_OK;
 }
 
