@@ -767,6 +767,21 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
             const size_t s = f->slot;
             const struct moments *m = &tot[s];
             const size_t mq = (size_t)m->n;
+            if (mq < ok_draws &&
+                (double)(ok_draws - mq) > SG_MC_UNDETERMINED_MAX_SHARE * (double)ok_draws) {
+                /* the draws that cannot determine it lie to one side (a
+                 * D-value beyond the curve's finest point, say): those that
+                 * can are not a random sample of its distribution, and an
+                 * interval from them can even miss the value itself */
+                char pct[24];
+                percent_text(pct, sizeof pct, 100.0 * (double)(ok_draws - mq) / (double)ok_draws);
+                (void)snprintf(buf, sizeof buf,
+                               "not determined in %s of draws: no u or 95 %% interval (the draws that determine "
+                               "it are not a random sample of its distribution)",
+                               pct);
+                note_append(q, buf);
+                continue;
+            }
             size_t r = 0, qq = 0;
             if (!sg_mc_coverage_indices(mq, SG_MC_COVERAGE, &r, &qq))
                 continue;

@@ -94,6 +94,16 @@
 
 /* Coverage probability of the reported intervals (SPEC low95/high95). */
 #define SG_MC_COVERAGE 0.95
+/* A quantity determined in the nominal result but not in more than this
+ * share of the accepted draws gets no u and no coverage interval, only a
+ * note: the draws that cannot determine it lie to one side of the others
+ * (a D-value beyond the curve's finest point), so those that can are a
+ * biased sample. Half of 1 - SG_MC_COVERAGE: up to that share the missing
+ * draws are fewer than the tail the interval leaves out at either end, so
+ * the interval from the others is off by at most that share of probability
+ * at one end (derived from JCGM 101 7.7). At or below it, u and the interval
+ * come from the draws that determine it, and the note gives the share. */
+#define SG_MC_UNDETERMINED_MAX_SHARE ((1.0 - SG_MC_COVERAGE) / 2.0)
 /* Most draws accepted in one run. Memory: about 0.6 bytes per draw per
  * numeric summary quantity (only the 2.5 % tails needed for the coverage
  * interval are kept, with room to spare), so 10^6 draws of 55 quantities
