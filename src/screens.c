@@ -190,6 +190,12 @@ static enum sg_status add_filter(struct sg_result *res, const struct sg_reduce_o
                        id);
     if (sg_result_add_text(res, "filter_screen", verdict, note) != SG_OK)
         return nomem(err);
+    if (opt->base_soil_qc_failed && !opt->values_only &&
+        sg_result_add_flag(res, "base_soil_qc", SG_SEVERITY_WARNING, 0,
+                           "the base soil %.63s failed its own QC rules: its D15 and D85, and so this filter "
+                           "screen, are doubtful (fix or re-test the base soil first)",
+                           id) != SG_OK)
+        return nomem(err);
     return SG_OK;
 }
 

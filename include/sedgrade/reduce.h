@@ -62,6 +62,9 @@ struct sg_reduce_options {
     bool has_base_soil;
     double base_d15_mm, base_d85_mm;
     char base_soil_id[64];
+    /* The base soil's own QC verdict ("failed": each test gets the warning
+     * flag base_soil_qc, its D15 and D85 being doubtful); default false. */
+    bool base_soil_qc_failed;
 };
 
 /* Defaults: loglinear, default QC limits, no extra D_x. */

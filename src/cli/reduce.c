@@ -1300,6 +1300,13 @@ static int load_base_soil(struct reduce_cfg *cfg)
             cfg->opt.base_d15_mm = d15 != NULL && d15->determined ? d15->value : (double)NAN;
             cfg->opt.base_d85_mm = d85->value;
             (void)snprintf(cfg->opt.base_soil_id, sizeof cfg->opt.base_soil_id, "%s", rec.id);
+            const struct sg_quantity *qs = sg_result_quantity(&res, "qc_status");
+            cfg->opt.base_soil_qc_failed = qs != NULL && qs->is_text && strcmp(qs->text, "failed") == 0;
+            const struct sg_quantity *qf = sg_result_quantity(&res, "qc_flags");
+            if (cfg->opt.base_soil_qc_failed)
+                sg_cli_errorf("%s: warning: the base soil failed its own QC rules (%s); the filter screens "
+                              "over it are flagged base_soil_qc",
+                              cfg->base_soil, qf != NULL && qf->is_text ? qf->text : "see its QC flags");
         }
     }
     sg_result_release(&res);
