@@ -92,7 +92,8 @@ DEFINE_ADD(sg_record_add_pipette, pipettes, struct sg_pipette_row)
 enum range_kind {
     POSITIVE, /* > 0, then within [min, max] */
     NONNEG,   /* >= 0, then <= max */
-    BETWEEN   /* within [min, max] */
+    BETWEEN,  /* within [min, max] */
+    NEGATIVE  /* < 0, then >= min (max is 0) */
 };
 
 struct range {
@@ -100,7 +101,7 @@ struct range {
     const char *unit;
     enum range_kind kind;
     double min, max;
-    const char *not_positive; /* POSITIVE: the phrase for a value <= 0 */
+    const char *not_positive; /* POSITIVE: the phrase for a value <= 0; NEGATIVE: for a value >= 0 */
     const char *advice;       /* what to do, for a value too low or not finite */
     const char *advice_high;  /* for a value above max (NULL: advice) */
 };
@@ -136,8 +137,10 @@ static const struct range RANGES[SG_VALUE_COUNT] = {
                                   NULL},
     [SG_VALUE_DEPTH_AT_ZERO] = {"effective depth at reading 0 of", "mm", POSITIVE, SG_RECORD_DEPTH_MIN_MM,
                                 SG_RECORD_DEPTH_MAX_MM, "must be positive", DEPTH_LINE_ADVICE, NULL},
-    [SG_VALUE_DEPTH_PER_UNIT] = {"effective depth change per reading unit of", "mm", BETWEEN,
-                                 -SG_RECORD_DEPTH_PER_UNIT_ABS_MAX_MM, SG_RECORD_DEPTH_PER_UNIT_ABS_MAX_MM, NULL,
+    [SG_VALUE_DEPTH_PER_UNIT] = {"effective depth change per reading unit of", "mm", NEGATIVE,
+                                 -SG_RECORD_DEPTH_PER_UNIT_ABS_MAX_MM, 0.0,
+                                 "must be negative: readings rise down the stem, so the effective depth falls as "
+                                 "the reading rises (e.g. -1.64 for a 152H-type hydrometer)",
                                  DEPTH_LINE_ADVICE, NULL},
     [SG_VALUE_MENISCUS] = {"meniscus correction", "reading units", BETWEEN, -SG_RECORD_READING_ABS_MAX,
                            SG_RECORD_READING_ABS_MAX, NULL, "give it in reading units, e.g. 0.5", NULL},
@@ -190,6 +193,15 @@ enum sg_status sg_record_check_value(enum sg_record_value which, double v, struc
             return sg_error_set(err, SG_EINVAL, pos.line, pos.col, "%s %g %s must not be negative (%s)", r->what,
                                 v, r->unit, r->advice);
         break;
+    case NEGATIVE:
+        if (!isfinite(v) || v >= 0.0)
+            return sg_error_set(err, SG_EINVAL, pos.line, pos.col, "%s %g %s %s (%s)", r->what, v, r->unit,
+                                r->not_positive, r->advice);
+        if (v < r->min)
+            return sg_error_set(err, SG_EINVAL, pos.line, pos.col,
+                                "%s %g %s is below %g %s, the smallest accepted (%s)", r->what, v, r->unit, r->min,
+                                r->unit, r->advice);
+        return SG_OK;
     case BETWEEN:
         if (!isfinite(v) || v < r->min || v > r->max)
             return sg_error_set(err, SG_EINVAL, pos.line, pos.col, "%s %g %s is outside %g%s%g %s (%s)", r->what,
@@ -242,6 +254,7 @@ static inline bool within(enum sg_record_value which, double v)
     case POSITIVE: return v > 0.0 && v >= r->min;
     case NONNEG: return v >= 0.0;
     case BETWEEN: return v >= r->min;
+    case NEGATIVE: return v < 0.0 && v >= r->min;
     }
     return false;
 }

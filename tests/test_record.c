@@ -165,7 +165,12 @@ Test(record, check_value_ranges)
         {SG_VALUE_DISPERSANT_MASS, -0.5, "dispersant mass -0.5 g must not be negative (give the total mass"},
         {SG_VALUE_DEPTH_AT_ZERO, 0.0, "effective depth at reading 0 of 0 mm must be positive (depth_line_mm is"},
         {SG_VALUE_DEPTH_PER_UNIT, -1.64, NULL},
-        {SG_VALUE_DEPTH_PER_UNIT, -164.0, "is outside -100 to 100 mm"},
+        {SG_VALUE_DEPTH_PER_UNIT, -164.0, "is below -100 mm, the smallest accepted"},
+        /* a depth line that rises with the reading, or is flat, cannot be
+         * a hydrometer's (readings rise down the stem; the register refuses
+         * such a fit too) */
+        {SG_VALUE_DEPTH_PER_UNIT, 1.64, "must be negative"},
+        {SG_VALUE_DEPTH_PER_UNIT, 0.0, "must be negative"},
         {SG_VALUE_MENISCUS, 0.5, NULL},
         {SG_VALUE_COMPOSITE, -5.5, NULL},
         {SG_VALUE_SIEVE_APERTURE, -2.0, "sieve aperture -2 mm must be positive (write 'pan' for the pan)"},

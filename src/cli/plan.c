@@ -235,9 +235,10 @@ static int parse_options(int argc, char **argv, struct plan_cfg *cfg)
                 return SG_EXIT_INPUT;
             }
             if (!(cfg->depth_line[0] > 0.0) || cfg->depth_line[1] < -PLAN_SLOPE_MAX_MM ||
-                cfg->depth_line[1] > PLAN_SLOPE_MAX_MM) {
+                !(cfg->depth_line[1] < 0.0)) {
                 sg_cli_errorf("option --depth-line: depth %g mm must be positive and the change %g mm per "
-                              "unit within +-%g mm",
+                              "unit negative, down to -%g mm (readings rise down the stem, so the effective "
+                              "depth falls as the reading rises, e.g. 163,-1.64)",
                               cfg->depth_line[0], cfg->depth_line[1], PLAN_SLOPE_MAX_MM);
                 return SG_EXIT_INPUT;
             }
