@@ -681,7 +681,7 @@ static bool walk(const char *dir, struct file_list *out, int depth)
         if (S_ISDIR(sb.st_mode)) {
             if (depth < 16)
                 (void)walk(path, out, depth + 1);
-        } else if (len > 4 && strcmp(de->d_name + len - 4, ".csv") == 0) {
+        } else if (len > 4 && sg_cli_is_record_name(de->d_name)) {
             ok = file_list_add(out, path);
         }
     }

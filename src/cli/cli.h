@@ -35,6 +35,10 @@ void sg_cli_errorf(const char *fmt, ...)
 /* Exit status for a library status (SG_EIO -> 3, SG_OK -> 0, else 2). */
 int sg_cli_exit_for(enum sg_status st);
 
+/* Whether a file name is a test record's when folders are walked: it ends
+ * in ".csv", in any case ("B1.CSV" from a system that writes upper case). */
+bool sg_cli_is_record_name(const char *name);
+
 /* Parses a whole decimal number with strtod + end pointer and a range
  * check; false with a message to stderr naming the option otherwise. */
 bool sg_cli_parse_double(const char *opt, const char *text, double min, double max, double *out);

@@ -6,6 +6,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 
 #include "cli/cli.h"
 #include "sedgrade/plot.h"
@@ -50,6 +51,12 @@ void sg_cli_errorf(const char *fmt, ...)
     vfprintf(stderr, fmt, ap);
     fputc('\n', stderr);
     va_end(ap);
+}
+
+bool sg_cli_is_record_name(const char *name)
+{
+    const size_t n = strlen(name);
+    return n > 4 && strcasecmp(name + n - 4, ".csv") == 0;
 }
 
 int sg_cli_exit_for(enum sg_status st)

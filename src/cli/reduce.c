@@ -261,12 +261,6 @@ static int cmp_entry(const void *a, const void *b)
     return strcmp(((const struct entry *)a)->path, ((const struct entry *)b)->path);
 }
 
-static bool has_csv_suffix(const char *name)
-{
-    const size_t n = strlen(name);
-    return n > 4 && strcmp(name + n - 4, ".csv") == 0;
-}
-
 #define MAX_FOLDER_DEPTH 32
 
 /* Walks dir (whose stat is dir_st) for *.csv, sorted and recursive; hidden
@@ -307,7 +301,7 @@ static bool walk(struct collection *c, const char *dir, const struct stat *dir_s
 #ifdef DT_REG
         /* a regular file the listing names as one is taken only as *.csv
          * (an archive folder holds thousands of other files) */
-        if (e->d_type == DT_REG && !has_csv_suffix(e->d_name))
+        if (e->d_type == DT_REG && !sg_cli_is_record_name(e->d_name))
             continue;
 #endif
         char path[PATH_MAX];
@@ -317,13 +311,13 @@ static bool walk(struct collection *c, const char *dir, const struct stat *dir_s
          * already; fstatat looks up one name in the open folder */
         struct stat st;
         if (fstatat(dirfd(d), e->d_name, &st, 0) != 0) {
-            if (has_csv_suffix(e->d_name)) {
+            if (sg_cli_is_record_name(e->d_name)) {
                 sg_cli_errorf("%s: cannot read: %s", path, strerror(errno));
                 c->problems++;
             }
             continue;
         }
-        if (!S_ISDIR(st.st_mode) && !has_csv_suffix(e->d_name))
+        if (!S_ISDIR(st.st_mode) && !sg_cli_is_record_name(e->d_name))
             continue;
         if (n_here == cap_here) {
             const size_t cap = cap_here ? 2 * cap_here : 64;
@@ -1484,6 +1478,11 @@ int sg_cli_check(int argc, char **argv)
     }
     note_repeats(&input);
     const struct path_list files = input.files;
+    if (files.n == 0 && input.problems == 0) {
+        sg_cli_errorf("no test records (*.csv) found in the given paths");
+        collection_release(&input);
+        return SG_EXIT_INPUT;
+    }
     int rc = input.problems ? SG_EXIT_INPUT : SG_EXIT_OK;
     /* the ids of the records that passed, claimed as reduce claims them */
     char(*ids)[SG_ID_MAX] = calloc(files.n ? files.n : 1, sizeof *ids);
