@@ -312,16 +312,21 @@ static double area_for(const char *register_dir, const struct sg_cal_event *ev, 
     return a;
 }
 
-/* Prints every part of event i. Returns false if an evaluation failed. */
-static bool print_event_parts(const struct sg_cal_instrument *ins, size_t i, const struct cal_opts *o,
+/* Prints every part of event i. Returns the exit status: SG_EXIT_INPUT
+ * if an evaluation failed, the chart's status if one could not be written
+ * (the larger), else SG_EXIT_OK. */
+static int print_event_parts(const struct sg_cal_instrument *ins, size_t i, const struct cal_opts *o,
                               struct sg_date d, unsigned only_parts)
 {
     const struct sg_cal_event *ev = &ins->events[i];
     const unsigned parts = sg_cal_event_parts(ev) & only_parts;
     struct sg_cal_result *res = malloc(sizeof *res);
-    if (res == NULL)
-        return false;
+    if (res == NULL) {
+        sg_cli_errorf("out of memory evaluating a calibration entry");
+        return SG_EXIT_IO;
+    }
     bool ok = true;
+    int rc = SG_EXIT_OK;
     char label[96];
     sg_cal_entry_label(ins, i, label, sizeof label);
     for (unsigned p = 0; p < SG_CAL_PART_COUNT; p++) {
@@ -343,11 +348,14 @@ static bool print_event_parts(const struct sg_cal_instrument *ins, size_t i, con
         printf("%s: %s (%s, due %s)%s%s%s\n", sg_cal_part_name((enum sg_cal_part)p), label,
                sg_cal_event_type_name(ev->type), due, why[0] ? " [" : "", why, why[0] ? "]" : "");
         print_result(ins, res);
-        if (o->has_plot && !sg_cli_cal_plot(ins, i, res, o->plot_fmt, "."))
-            ok = false;
+        if (o->has_plot) {
+            const int pr = sg_cli_cal_plot(ins, i, res, o->plot_fmt, ".");
+            if (pr > rc)
+                rc = pr;
+        }
     }
     free(res);
-    return ok;
+    return !ok && rc < SG_EXIT_INPUT ? SG_EXIT_INPUT : rc;
 }
 
 /* ---- show ------------------------------------------------------------------------ */
@@ -452,7 +460,8 @@ static int cal_show(const struct cal_opts *o)
     char dt[11];
     sg_date_format(d, dt);
     printf("\nin force on %s\n", dt);
-    bool any = false, ok = true;
+    bool any = false;
+    int rc = SG_EXIT_OK;
     for (unsigned p = 0; p < SG_CAL_PART_COUNT; p++) {
         if (stat.entry[p] < 0)
             continue;
@@ -467,13 +476,15 @@ static int cal_show(const struct cal_opts *o)
         for (unsigned q = p; q < SG_CAL_PART_COUNT; q++)
             if (stat.entry[q] == stat.entry[p])
                 parts |= 1u << q;
-        ok = print_event_parts(&ins, (size_t)stat.entry[p], o, d, parts) && ok;
+        const int pr = print_event_parts(&ins, (size_t)stat.entry[p], o, d, parts);
+        if (pr > rc)
+            rc = pr;
         any = true;
     }
     if (!any)
         printf("  nothing in force\n");
     sg_cal_instrument_release(&ins);
-    return ok ? SG_EXIT_OK : SG_EXIT_INPUT;
+    return rc;
 }
 
 /* ---- fit ----------------------------------------------------------------------------- */
@@ -502,14 +513,16 @@ static int cal_fit(const struct cal_opts *o)
         return sg_cli_exit_for(st);
     }
     printf("%s (%s), not stored\n", o->args[0], sg_cal_kind_name(ins.kind));
-    bool ok = true;
+    int rc = SG_EXIT_OK;
     for (size_t i = 0; i < ins.n_events; i++) {
         if (!sg_cal_event_is_entry(ins.events[i].type))
             continue;
-        ok = print_event_parts(&ins, i, o, ins.events[i].date, ~0u) && ok;
+        const int pr = print_event_parts(&ins, i, o, ins.events[i].date, ~0u);
+        if (pr > rc)
+            rc = pr;
     }
     sg_cal_instrument_release(&ins);
-    return ok ? SG_EXIT_OK : SG_EXIT_INPUT;
+    return rc;
 }
 
 /* ---- add ---------------------------------------------------------------------------- */

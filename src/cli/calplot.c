@@ -69,11 +69,11 @@ static void line_of(const struct sg_cal_result *r, double *c0, double *c1)
     *c0 = mf - *c1 * mx;
 }
 
-bool sg_cli_cal_plot(const struct sg_cal_instrument *ins, size_t i, const struct sg_cal_result *res,
-                     enum sg_plot_format fmt, const char *out_dir)
+int sg_cli_cal_plot(const struct sg_cal_instrument *ins, size_t i, const struct sg_cal_result *res,
+                    enum sg_plot_format fmt, const char *out_dir)
 {
     if (res->n < 1)
-        return true; /* nothing observed: nothing to draw */
+        return SG_EXIT_OK; /* nothing observed: nothing to draw */
     char label[96], name[128], path[4096], title[200], note[400], date[11];
     sg_cal_entry_label(ins, i, label, sizeof label);
     for (char *p = label; *p; p++)
@@ -83,7 +83,7 @@ bool sg_cli_cal_plot(const struct sg_cal_instrument *ins, size_t i, const struct
     (void)snprintf(name, sizeof name, "%s.%s.%s", label, part, sg_plot_extension(fmt));
     if (snprintf(path, sizeof path, "%s/%s", out_dir, name) >= (int)sizeof path) {
         sg_cli_errorf("'%s': output path too long", name);
-        return false;
+        return SG_EXIT_IO;
     }
     sg_date_format(ins->events[i].date, date);
     (void)snprintf(title, sizeof title, "%s \xe2\x80\x94 %s, %s %s", ins->id, part,
@@ -113,10 +113,11 @@ bool sg_cli_cal_plot(const struct sg_cal_instrument *ins, size_t i, const struct
         f.line_label = caption;
     }
     struct sg_error err;
-    if (sg_plot_fit_write(&f, fmt, path, &err) != SG_OK) {
+    const enum sg_status st = sg_plot_fit_write(&f, fmt, path, &err);
+    if (st != SG_OK) {
         sg_cli_report(NULL, &err);
-        return false;
+        return sg_cli_exit_for(st);
     }
     printf("  chart: %s\n", path);
-    return true;
+    return SG_EXIT_OK;
 }

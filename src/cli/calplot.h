@@ -14,9 +14,10 @@
  * as "<label>.<part>.<ext>" (label from sg_cal_entry_label, '@' and '#'
  * written '_'), and prints "  chart: <path>" to stdout. The line drawn is
  * the one the residuals are taken from (fit, mean, or reading = reference
- * for a scale check). Prints the problem to stderr and returns false on
- * failure. */
-bool sg_cli_cal_plot(const struct sg_cal_instrument *ins, size_t i, const struct sg_cal_result *res,
+ * for a scale check). Returns the exit status: SG_EXIT_OK, or, with the
+ * problem printed to stderr, SG_EXIT_IO when the file cannot be written
+ * (the status of sg_cli_exit_for). */
+int sg_cli_cal_plot(const struct sg_cal_instrument *ins, size_t i, const struct sg_cal_result *res,
                      enum sg_plot_format fmt, const char *out_dir);
 
 #endif
