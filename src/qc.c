@@ -52,7 +52,8 @@ static const struct sg_qc_rule rules[] = {
      "curve point above a coarser point by more than 1.0 point", "METHODS.md 6.3 #1 (practice)"},
     {"junction_gap", SG_SEVERITY_WARNING, 0, "sieve/sedimentation gap above 5 points",
      "METHODS.md 6.3 #2 (practice)"},
-    {"mass_balance", SG_SEVERITY_WARNING, 0, "sieve masses incl. pan differ from the sample mass by > 1 %",
+    {"mass_balance", SG_SEVERITY_WARNING, 0,
+     "sieve masses incl. pan differ from the sample (or fine sieves' from the specimen) mass by > 1 %",
      "METHODS.md 5.3 (EN 933-1 1 %, from memory)"},
 };
 
@@ -610,6 +611,35 @@ static enum sg_status rule_mass_balance(const struct sg_record *rec, const struc
                 lim->mass_balance_max_pct);
 }
 
+/* The specimen's fine sieving (METHODS.md 5.3, as for the sample): when its
+ * pan (the fines washed through, weighed or by difference) is given, the
+ * fine-sieve masses with the pan must make up the specimen's dry mass. A
+ * mass_balance flag, like the sample's; no summary row of its own. */
+static enum sg_status rule_fine_mass_balance(const struct sg_record *rec, const struct sg_qc_limits *lim,
+                                             struct sg_result *res, struct sg_error *err)
+{
+    if (rec == NULL || rec->n_fine_sieve == 0 || !(rec->specimen_dry_mass_g > 0.0))
+        return SG_OK;
+    bool has_pan = false;
+    for (size_t i = 0; i < rec->n_fine_sieve; i++)
+        has_pan |= rec->fine_sieve[i].aperture_mm <= SG_SIEVE_PAN_MM;
+    if (!has_pan)
+        return SG_OK;
+    const double total_g = sg_sieve_total_retained(rec->fine_sieve, rec->n_fine_sieve);
+    double loss_g = rec->specimen_dry_mass_g - total_g;
+    if (fabs(loss_g) <= 1e-9 * rec->specimen_dry_mass_g)
+        loss_g = 0.0;
+    const double loss_pct = 100.0 * loss_g / rec->specimen_dry_mass_g;
+    if (!above(fabs(loss_pct), lim->mass_balance_max_pct))
+        return SG_OK;
+    return flag(res, "mass_balance", rec->pos_specimen_mass.line, err,
+                "fine-sieve masses of the specimen including the pan sum to %.5g g, %.3g %% %s the specimen's "
+                "dry mass %.5g g, beyond %g %% (reweigh the fractions, or give the pan as the specimen's mass "
+                "minus the sum retained)",
+                total_g, fabs(loss_pct), loss_pct > 0.0 ? "less than" : "more than", rec->specimen_dry_mass_g,
+                lim->mass_balance_max_pct);
+}
+
 enum sg_status sg_qc_summarise(const struct sg_qc_limits *lim, struct sg_result *res, struct sg_error *err)
 {
     struct sg_qc_limits def;
@@ -678,6 +708,8 @@ enum sg_status sg_qc_evaluate(const struct sg_record *rec, const struct sg_const
         st = rule_junction(lim, res, err);
     if (st == SG_OK)
         st = rule_mass_balance(rec, lim, res, err);
+    if (st == SG_OK)
+        st = rule_fine_mass_balance(rec, lim, res, err);
     if (st == SG_OK)
         st = sg_qc_summarise(lim, res, err);
     return st;

@@ -750,6 +750,43 @@ Test(qc, mass_balance_needs_a_pan)
     sg_result_release(&r);
 }
 
+/* The specimen's fine sieves with their pan must make up the specimen's
+ * mass too (the same 1 % as the sample's, METHODS.md 5.3, EN 933-1 from
+ * memory): 12.5 + 19 + 9.5 + pan 8.5 = 49.5 g of 50 g is 1.0 %, at the
+ * limit; a pan of 500 g is a typing error the results do not show. */
+static bool fine_flagged(double pan_g, bool with_pan)
+{
+    struct sg_record rec;
+    sg_record_init(&rec);
+    rec.specimen_dry_mass_g = 50.0;
+    rec.pos_specimen_mass.line = 9;
+    const struct sg_sieve_row rows[] = {{1.18, 12.5, {20, 1}}, {0.425, 19.0, {21, 1}}, {0.063, 9.5, {22, 1}},
+                                        {0.0, pan_g, {23, 1}}};
+    for (size_t i = 0; i < (with_pan ? 4u : 3u); i++)
+        cr_assert_eq(sg_record_add_fine_sieve(&rec, rows[i]), SG_OK);
+    struct sg_result r;
+    sg_result_init(&r);
+    const struct sg_qc_limits lim = sg_qc_limits_default();
+    evaluate_with(&r, &rec, NULL, &lim);
+    const struct sg_flag *f = find_flag(&r, "mass_balance");
+    if (f != NULL) {
+        cr_assert_eq(f->line, 9);
+        cr_assert(strstr(f->message, "specimen") != NULL, "%s", f->message);
+    }
+    sg_result_release(&r);
+    sg_record_release(&rec);
+    return f != NULL;
+}
+
+Test(qc, fine_sieve_mass_balance)
+{
+    cr_assert_not(fine_flagged(9.0, true));   /* 50.0 g: balanced */
+    cr_assert_not(fine_flagged(8.5, true));   /* loss 1.0 %: at the limit */
+    cr_assert(fine_flagged(8.4, true));       /* loss 1.2 % */
+    cr_assert(fine_flagged(500.0, true));     /* a gain of 982 % */
+    cr_assert_not(fine_flagged(500.0, false)); /* no pan: the washed fines were not weighed */
+}
+
 /* ---- the run's status and flag list ------------------------------------- */
 
 Test(qc, status_and_flag_list_in_the_summary)
