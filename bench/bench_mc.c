@@ -73,7 +73,7 @@ static int build_record(struct sg_record *rec, bool with_sieves)
             return -1;
     }
     for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++) {
-        struct sg_reading_row r = {rows[i][0], rows[i][1], rows[i][2], false, 0.0, {line++, 1}};
+        struct sg_reading_row r = {rows[i][0], rows[i][1], rows[i][2], false, 0.0, {line++, 1}, 0};
         if (sg_record_add_reading(rec, r) != SG_OK)
             return -1;
     }

@@ -442,7 +442,8 @@ enum sg_status sg_record_validate(const struct sg_record *rec, struct sg_diag_li
             const struct sg_reading_row *r = &rec->readings[i];
             check_time(&c, r->elapsed_min, r->pos, &last);
             (void)check(&c, SG_VALUE_READING, r->reading, r->pos);
-            (void)check(&c, SG_VALUE_TEMP, r->temp_c, r->pos);
+            (void)check(&c, SG_VALUE_TEMP, r->temp_c,
+                        (struct sg_srcpos){r->pos.line, r->temp_col ? r->temp_col : r->pos.col});
             if (r->has_blank)
                 (void)check(&c, SG_VALUE_BLANK, r->blank_reading, r->pos);
         }

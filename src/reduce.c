@@ -155,12 +155,17 @@ static enum sg_status blank_for(const struct sg_reading_row *r, double temp_c, c
         return SG_OK;
     }
     if (k->has_blank_line) {
-        if (temp_c < k->blank_tmin_c || temp_c > k->blank_tmax_c)
-            return sg_error_set(err, SG_EDOM, r->pos.line, r->pos.col,
-                                "temperature %g C is outside %g-%g C, the range over which the blank "
+        if (temp_c < k->blank_tmin_c || temp_c > k->blank_tmax_c) {
+            char corrected[64] = "";
+            if (temp_c != r->temp_c)
+                (void)snprintf(corrected, sizeof corrected, " (%g C read, thermometer correction %+g C)", r->temp_c,
+                               k->thermometer_offset_c);
+            return sg_error_set(err, SG_EDOM, r->pos.line, r->temp_col ? r->temp_col : r->pos.col,
+                                "temperature %g C%s is outside %g-%g C, the range over which the blank "
                                 "(composite) reading was calibrated (extend the calibration or give the "
                                 "blank reading as the row's fifth field)",
-                                temp_c, k->blank_tmin_c, k->blank_tmax_c);
+                                temp_c, corrected, k->blank_tmin_c, k->blank_tmax_c);
+        }
         *blank = k->blank_c0 + k->blank_c1 * temp_c;
         return SG_OK;
     }

@@ -62,7 +62,7 @@ static void base_record(struct sg_record *rec)
 
 static void add_reading(struct sg_record *rec, double t_min, double r, double temp_c, unsigned line)
 {
-    const struct sg_reading_row row = {t_min, r, temp_c, false, 0.0, {line, 1}};
+    const struct sg_reading_row row = {t_min, r, temp_c, false, 0.0, {line, 1}, 0};
     cr_assert_eq(sg_record_add_reading(rec, row), SG_OK);
 }
 

@@ -911,7 +911,7 @@ static void v2a_record(struct sg_record *rec, const double *reading, const doubl
     rec->pos_composite = (struct sg_srcpos){8, 1};
     for (size_t i = 0; i < sizeof v2a_t_min / sizeof v2a_t_min[0]; i++) {
         struct sg_reading_row row = {v2a_t_min[i], reading[i], temp_c[i], false, 0.0,
-                                     {(unsigned)(10 + i), 1}};
+                                     {(unsigned)(10 + i), 1}, 0};
         cr_assert_eq(sg_record_add_reading(rec, row), SG_OK);
     }
 }

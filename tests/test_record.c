@@ -25,8 +25,8 @@ static void minimal_hydrometer(struct sg_record *rec)
     rec->has_depth_line = true;
     rec->depth_line_mm[0] = 163.2; /* a 152H-type line, invented */
     rec->depth_line_mm[1] = -1.64;
-    const struct sg_reading_row r1 = {1.0, 30.5, 21.2, false, 0, at(10)};
-    const struct sg_reading_row r2 = {2.0, 28.0, 21.3, false, 0, at(11)};
+    const struct sg_reading_row r1 = {1.0, 30.5, 21.2, false, 0, at(10), 0};
+    const struct sg_reading_row r2 = {2.0, 28.0, 21.3, false, 0, at(11), 0};
     cr_assert_eq(sg_record_add_reading(rec, r1), SG_OK);
     cr_assert_eq(sg_record_add_reading(rec, r2), SG_OK);
 }
@@ -58,7 +58,7 @@ Test(record, copy_is_deep)
     cr_assert_eq(sg_record_copy(&copy, &rec), SG_OK);
     copy.readings[0].reading = 99.0;
     cr_assert_eq(rec.readings[0].reading, 30.5);
-    const struct sg_reading_row r3 = {4.0, 26.0, 21.3, false, 0, at(12)};
+    const struct sg_reading_row r3 = {4.0, 26.0, 21.3, false, 0, at(12), 0};
     cr_assert_eq(sg_record_add_reading(&copy, r3), SG_OK);
     cr_assert_eq(rec.n_readings, 2u);
     sg_record_release(&copy);

@@ -53,7 +53,7 @@ static void v2b_record(struct sg_record *rec)
     for (int i = 0; i < 3; i++)
         cr_assert_eq(sg_record_add_sieve(rec, s[i]), SG_OK);
     for (int i = 0; i < 9; i++) {
-        const struct sg_reading_row row = {t[i], r[i], 25.0, false, 0.0, at(20u + (unsigned)i)};
+        const struct sg_reading_row row = {t[i], r[i], 25.0, false, 0.0, at(20u + (unsigned)i), 0};
         cr_assert_eq(sg_record_add_reading(rec, row), SG_OK);
     }
 }

@@ -48,6 +48,7 @@ struct sg_reading_row {
     bool has_blank;
     double blank_reading; /* control-cylinder reading at this temperature, scale units */
     struct sg_srcpos pos;
+    unsigned temp_col;    /* column of the temperature field on pos.line; 0 = unknown */
 };
 
 /* A "pipette" row. */

@@ -935,6 +935,7 @@ static void reading_row(struct rp *p)
     ok = number(p, &p->f[2], &NS_READING, &row.reading) && in_range(p, SG_VALUE_READING, row.reading, &p->f[2]) &&
          ok;
     ok = number(p, &p->f[3], &NS_TEMP, &row.temp_c) && in_range(p, SG_VALUE_TEMP, row.temp_c, &p->f[3]) && ok;
+    row.temp_col = p->f[3].col;
     if (p->nf_eff == 5) {
         row.has_blank = true;
         ok = number(p, &p->f[4], &NS_BLANK, &row.blank_reading) &&
