@@ -387,6 +387,13 @@ enum sg_status sg_reduce(const struct sg_record *rec, const struct sg_constants 
     double pp_split = 100.0, finest_sieve_mm = INFINITY;
     if (rec->n_sieve > 0 && !opt->values_only && (st = check_split_sieve(rec, res, err)) != SG_OK)
         return st;
+    if (rec->n_sieve == 0 && rec->pos_split_aperture.line != 0 && !opt->values_only &&
+        sg_result_add_flag(res, "split_sieve", SG_SEVERITY_WARNING, rec->pos_split_aperture.line,
+                           "split_aperture_mm %g mm is given but the record has no sieve rows: 100 %% of the "
+                           "sample is taken to pass it, so the percentages are of the specimen (add the sieve "
+                           "rows, or leave split_aperture_mm out)",
+                           rec->split_aperture_mm) != SG_OK)
+        return sg_error_set(err, SG_ENOMEM, 0, 0, "out of memory");
     if (rec->n_sieve > 0) {
         pp_split = sg_sieve_percent_passing(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g,
                                             rec->split_aperture_mm);

@@ -130,6 +130,14 @@ Test(reduce, split_sieve_not_among_the_sieves_is_flagged)
     f = find_flag(&res, "split_sieve");
     cr_assert_not_null(f);
     cr_assert(strstr(f->message, "100 %") != NULL, "%s", f->message);
+    /* a split aperture with no sieve rows at all: 100 % assumed, and said */
+    rec.n_sieve = 0;
+    rec.split_aperture_mm = 2.0;
+    cr_assert_eq(sg_reduce(&rec, NULL, NULL, &res, &err), SG_OK, "%s", err.msg);
+    cr_assert(fabs(res.pp_split - 100.0) < 1e-12);
+    f = find_flag(&res, "split_sieve");
+    cr_assert_not_null(f);
+    cr_assert(strstr(f->message, "no sieve rows") != NULL, "%s", f->message);
     sg_result_release(&res);
     sg_record_release(&rec);
 }
