@@ -296,7 +296,10 @@ static bool is_id_char(char ch)
 }
 
 /* The id names output files: [A-Za-z0-9._-], not starting with '.' (a
- * hidden file; "." and ".." are folders). */
+ * hidden file; "." and ".." are folders), and not ending in ".report":
+ * test "X.report"'s plot X.report.pdf is test X's report. */
+#define ID_REPORT_SUFFIX ".report"
+#define ID_REPORT_SUFFIX_LEN (sizeof ID_REPORT_SUFFIX - 1)
 static void check_id(struct checker *c, const struct sg_record *rec, struct sg_srcpos top)
 {
     if (rec->pos_id.line == 0 || rec->id[0] == '\0') {
@@ -313,6 +316,11 @@ static void check_id(struct checker *c, const struct sg_record *rec, struct sg_s
                "test id '%.*s' is not accepted (it names the output files: use letters, digits, '.', '_' and "
                "'-', starting with a letter or digit, e.g. BH1-2.5)",
                (int)(len < sizeof rec->id ? len : sizeof rec->id - 1), rec->id);
+    else if (len > ID_REPORT_SUFFIX_LEN && strcmp(rec->id + len - ID_REPORT_SUFFIX_LEN, ID_REPORT_SUFFIX) == 0)
+        REPORT(c, rec->pos_id,
+               "test id '%s' is not accepted: its PDF plot '%s.pdf' would take the name of the report of a test "
+               "'%.*s' (drop or change the '.report' ending)",
+               rec->id, rec->id, (int)(len - ID_REPORT_SUFFIX_LEN), rec->id);
 }
 
 /* Elapsed times: each within range, strictly increasing. Called row by row

@@ -263,6 +263,16 @@ Test(record, validate_refuses_ids_starting_with_a_dot)
     minimal_hydrometer(&rec);
     strcpy(rec.id, "BH1-2.5_a");
     cr_assert_eq(sg_record_validate(&rec, NULL, NULL), SG_OK);
+    /* "X.report": its PDF plot X.report.pdf would overwrite test X's report */
+    strcpy(rec.id, "B1.report");
+    struct sg_error err;
+    cr_assert_eq(sg_record_validate(&rec, NULL, &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "'B1.report.pdf' would take the name of the report of a test 'B1'") != NULL, "%s",
+              err.msg);
+    strcpy(rec.id, "B1.reports");
+    cr_assert_eq(sg_record_validate(&rec, NULL, NULL), SG_OK);
+    strcpy(rec.id, ".report");
+    cr_assert_eq(sg_record_validate(&rec, NULL, NULL), SG_EINVAL); /* hidden */
     sg_record_release(&rec);
 }
 
