@@ -549,6 +549,45 @@ Test(calibio, append_keeps_earlier_bytes)
     remove_register(dir);
 }
 
+/* A register file its user may not write is refused, not replaced: the
+ * append renames a new file into place, which the folder's permissions
+ * would allow. As root (who may write anything) the append runs in a child
+ * process that first becomes the unprivileged user 65534 ("nobody"). */
+Test(calibio, append_refuses_a_read_only_register_file)
+{
+    char dir[64], path[128];
+    copy_register(dir, sizeof dir);
+    (void)snprintf(path, sizeof path, "%s/T-TH.csv", dir);
+    size_t before_len, after_len;
+    char *before = slurp(path, &before_len);
+    cr_assert_eq(chmod(dir, 0777), 0);
+    cr_assert_eq(chmod(path, 0444), 0);
+    size_t len;
+    char *text = slurp(EVENTS "/th-ok.csv", &len);
+    const pid_t pid = fork();
+    cr_assert_neq(pid, -1);
+    if (pid == 0) {
+        if (geteuid() == 0 && (setgid(65534) != 0 || setuid(65534) != 0))
+            _exit(10);
+        struct sg_error err;
+        if (sg_calibio_append(dir, "T-TH", text, len, &err) != SG_EIO)
+            _exit(11);
+        _exit(strstr(err.msg, "is not writable for you") != NULL ? 0 : 12);
+    }
+    int status = 0;
+    cr_assert_eq(waitpid(pid, &status, 0), pid);
+    cr_assert(WIFEXITED(status) && WEXITSTATUS(status) == 0, "child status %d", status);
+    char *after = slurp(path, &after_len);
+    cr_assert(after_len == before_len && memcmp(before, after, before_len) == 0, "the file changed");
+    struct stat sb;
+    cr_assert_eq(stat(path, &sb), 0);
+    cr_assert_eq(sb.st_mode & 0777, 0444);
+    free(text);
+    free(before);
+    free(after);
+    remove_register(dir);
+}
+
 Test(calibio, append_refuses_a_bad_row_and_changes_nothing)
 {
     char dir[64], path[128];

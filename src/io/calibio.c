@@ -1384,6 +1384,17 @@ static enum sg_status append_locked(const char *register_dir, const char *id, co
     }
     if (st != SG_OK)
         goto cleanup;
+    /* the new file replaces the old one by a rename, which the folder's
+     * permissions allow: a file the user may not write is refused here
+     * instead of replaced (and its owner and mode with it) */
+    if (access(path, W_OK) != 0) {
+        const int e = errno;
+        st = sg_error_set(err, SG_EIO, 0, 0,
+                          "the register file %s is not writable for you: %s (ask whoever keeps the register, or "
+                          "change its permissions)",
+                          path, strerror(e));
+        goto cleanup;
+    }
     if ((st = sg_calibio_parse(old, old_len, SG_CALIBIO_REGISTER, &ins, err)) != SG_OK ||
         (st = check_id(&ins, id, path, err)) != SG_OK) {
         relabel(err, st, path);
