@@ -576,28 +576,37 @@ static enum sg_status set_text(struct sg_result *res, const char *name, const ch
     return SG_OK;
 }
 
+/* The mass balance of sieve rows against mass_g: whether a pan is among
+ * them (else nothing to balance), the sum retained including the pan, and
+ * the loss in percent of mass_g (negative: a gain), 0 when exact to the
+ * masses' own digits rather than the round-off of summing them (e.g.
+ * -1.2e-14 %). */
+static bool balance(const struct sg_sieve_row *rows, size_t n, double mass_g, double *total_g, double *loss_pct)
+{
+    bool has_pan = false;
+    for (size_t i = 0; i < n; i++)
+        has_pan |= rows[i].aperture_mm <= SG_SIEVE_PAN_MM;
+    *total_g = sg_sieve_total_retained(rows, n);
+    double loss_g = mass_g - *total_g;
+    if (fabs(loss_g) <= 1e-9 * mass_g)
+        loss_g = 0.0;
+    *loss_pct = 100.0 * loss_g / mass_g;
+    return has_pan;
+}
+
 /* Sieve mass balance (METHODS.md 5.3): only when a pan was weighed. The
  * quantity sieve_loss_pct is always added (undetermined without a pan) so
  * that batch summaries keep one set of columns. */
 static enum sg_status rule_mass_balance(const struct sg_record *rec, const struct sg_qc_limits *lim,
                                         struct sg_result *res, struct sg_error *err)
 {
-    bool has_pan = false;
-    const size_t n_sieve = rec != NULL ? rec->n_sieve : 0;
-    for (size_t i = 0; i < n_sieve; i++)
-        has_pan |= rec->sieve[i].aperture_mm <= SG_SIEVE_PAN_MM;
-    if (n_sieve == 0)
+    if (rec == NULL || rec->n_sieve == 0)
         return set_value(res, "sieve_loss_pct", "%", (double)NAN, "no sieve rows", err);
-    if (!has_pan || !(rec->sample_dry_mass_g > 0.0))
+    double total_g = 0.0, loss_pct = 0.0;
+    if (!(rec->sample_dry_mass_g > 0.0) ||
+        !balance(rec->sieve, rec->n_sieve, rec->sample_dry_mass_g, &total_g, &loss_pct))
         return set_value(res, "sieve_loss_pct", "%", (double)NAN,
                          "no pan row: the fines washed through were not weighed, so no mass balance", err);
-    const double total_g = sg_sieve_total_retained(rec->sieve, rec->n_sieve);
-    /* a balance exact to the masses' own digits is 0, not the round-off of
-     * summing them (e.g. -1.2e-14 %) */
-    double loss_g = rec->sample_dry_mass_g - total_g;
-    if (fabs(loss_g) <= 1e-9 * rec->sample_dry_mass_g)
-        loss_g = 0.0;
-    const double loss_pct = 100.0 * loss_g / rec->sample_dry_mass_g;
     enum sg_status st = set_value(res, "sieve_loss_pct", "%", loss_pct,
                                   "100 (sample dry mass - sum retained incl. pan) / sample dry mass; "
                                   "negative: a gain (METHODS.md 5.3)",
@@ -620,17 +629,9 @@ static enum sg_status rule_fine_mass_balance(const struct sg_record *rec, const 
 {
     if (rec == NULL || rec->n_fine_sieve == 0 || !(rec->specimen_dry_mass_g > 0.0))
         return SG_OK;
-    bool has_pan = false;
-    for (size_t i = 0; i < rec->n_fine_sieve; i++)
-        has_pan |= rec->fine_sieve[i].aperture_mm <= SG_SIEVE_PAN_MM;
-    if (!has_pan)
-        return SG_OK;
-    const double total_g = sg_sieve_total_retained(rec->fine_sieve, rec->n_fine_sieve);
-    double loss_g = rec->specimen_dry_mass_g - total_g;
-    if (fabs(loss_g) <= 1e-9 * rec->specimen_dry_mass_g)
-        loss_g = 0.0;
-    const double loss_pct = 100.0 * loss_g / rec->specimen_dry_mass_g;
-    if (!above(fabs(loss_pct), lim->mass_balance_max_pct))
+    double total_g = 0.0, loss_pct = 0.0;
+    if (!balance(rec->fine_sieve, rec->n_fine_sieve, rec->specimen_dry_mass_g, &total_g, &loss_pct) ||
+        !above(fabs(loss_pct), lim->mass_balance_max_pct))
         return SG_OK;
     return flag(res, "mass_balance", rec->pos_specimen_mass.line, err,
                 "fine-sieve masses of the specimen including the pan sum to %.5g g, %.3g %% %s the specimen's "

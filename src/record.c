@@ -180,7 +180,8 @@ enum sg_status sg_record_check_value(enum sg_record_value which, double v, struc
     const char *high = r->advice_high != NULL ? r->advice_high : r->advice;
     switch (r->kind) {
     case POSITIVE:
-        if (!isfinite(v) || v <= 0.0)
+    case NEGATIVE: /* its max is 0: the test after the switch never fires */
+        if (!isfinite(v) || (r->kind == POSITIVE ? v <= 0.0 : v >= 0.0))
             return sg_error_set(err, SG_EINVAL, pos.line, pos.col, "%s %g %s %s (%s)", r->what, v, r->unit,
                                 r->not_positive, r->advice);
         if (v < r->min)
@@ -193,15 +194,6 @@ enum sg_status sg_record_check_value(enum sg_record_value which, double v, struc
             return sg_error_set(err, SG_EINVAL, pos.line, pos.col, "%s %g %s must not be negative (%s)", r->what,
                                 v, r->unit, r->advice);
         break;
-    case NEGATIVE:
-        if (!isfinite(v) || v >= 0.0)
-            return sg_error_set(err, SG_EINVAL, pos.line, pos.col, "%s %g %s %s (%s)", r->what, v, r->unit,
-                                r->not_positive, r->advice);
-        if (v < r->min)
-            return sg_error_set(err, SG_EINVAL, pos.line, pos.col,
-                                "%s %g %s is below %g %s, the smallest accepted (%s)", r->what, v, r->unit, r->min,
-                                r->unit, r->advice);
-        return SG_OK;
     case BETWEEN:
         if (!isfinite(v) || v < r->min || v > r->max)
             return sg_error_set(err, SG_EINVAL, pos.line, pos.col, "%s %g %s is outside %g%s%g %s (%s)", r->what,
