@@ -839,8 +839,13 @@ static enum sg_status publish(struct plan *p, struct worker *ws, unsigned nw, st
         if (failed > 0 && w > 0 && (size_t)w < sizeof note) {
             char pct[24];
             percent_text(pct, sizeof pct, 100.0 * (double)failed / (double)p->m);
-            (void)snprintf(note + w, sizeof note - (size_t)w, "; %s refused", pct);
+            w += snprintf(note + w, sizeof note - (size_t)w, "; %s refused", pct);
         }
+        if (p->m < SG_MC_DRAWS_ADVISED && w > 0 && (size_t)w < sizeof note)
+            (void)snprintf(note + w, sizeof note - (size_t)w,
+                           "; fewer than %d draws: u and the intervals are rough (JCGM 101 7.2: M much larger "
+                           "than 1/(1 - p); %d or more)",
+                           SG_MC_DRAWS_ADVISED, SG_MC_DRAWS_ADVISED);
         st = sg_result_add_value(res, "mc_draws", "", (double)p->m, note);
     }
     if (st == SG_OK && failed > 0) {

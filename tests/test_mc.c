@@ -493,6 +493,7 @@ Test(run, outputs_on_a_full_record)
     const struct sg_quantity *m = qty(&res, "mc_draws");
     cr_assert_float_eq(m->value, 20000.0, 1e-9);
     cr_assert(strstr(m->note, "seed 2026") != NULL, "%s", m->note);
+    cr_assert(strstr(m->note, "rough") == NULL, "%s", m->note); /* 20 000 draws: enough (mc.h) */
     cr_assert(!qty(&res, "calibration_used")->has_u);
     sg_result_release(&res);
     sg_record_release(&rec);
@@ -583,6 +584,9 @@ Test(run, not_determined_in_some_draws)
      * the whole output distribution) */
     cr_assert(!d10->has_u, "u %g [%g, %g]", d10->u, d10->low95, d10->high95);
     cr_assert(strstr(d10->note, "no u or 95 % interval") != NULL, "%s", d10->note);
+    /* 4 000 draws: fewer than advised (JCGM 101 7.2), and the note says so */
+    cr_assert(strstr(qty(&res, "mc_draws")->note, "fewer than 10000 draws: u and the intervals are rough") != NULL,
+              "%s", qty(&res, "mc_draws")->note);
     sg_result_release(&res);
     sg_record_release(&rec);
 

@@ -94,6 +94,11 @@
 
 /* Coverage probability of the reported intervals (SPEC low95/high95). */
 #define SG_MC_COVERAGE 0.95
+/* Fewer draws than this get a note on mc_draws that u and the intervals
+ * are rough: JCGM 101 7.2 asks for M much larger than 1/(1 - p) = 20 and
+ * suggests 10^6; 10^4 gives the 2.5 % tails 250 draws each (common
+ * practice). */
+#define SG_MC_DRAWS_ADVISED 10000
 /* A quantity determined in the nominal result but not in more than this
  * share of the accepted draws gets no u and no coverage interval, only a
  * note: the draws that cannot determine it lie to one side of the others
