@@ -612,21 +612,39 @@ Test(calibio, append_refuses_a_bad_row_and_changes_nothing)
     cr_assert(strstr(err.msg, "date order") != NULL, "%s", err.msg);
     cr_assert_eq(err.line, 1);
     /* a calibration with no limit */
-    const char nolimit[] = "event,2031-01-01,calibration\nby,a\nmethod,m\nice_point,0.1\ndue,2032-01-01\n";
+    const char nolimit[] = "event,2021-01-01,calibration\nby,a\nmethod,m\nice_point,0.1\ndue,2022-01-01\n";
     cr_assert_eq(sg_calibio_append(dir, "T-TH", nolimit, strlen(nolimit), &err), SG_EINVAL);
     cr_assert(strstr(err.msg, "correction_max_c") != NULL, "%s", err.msg);
     /* observations of another kind */
-    const char wrong[] = "event,2031-01-01,calibration\nby,a\nmethod,m\nmeniscus,0,1\n"
-                         "limit,meniscus_spread,1\ndue,2032-01-01\n";
+    const char wrong[] = "event,2021-01-01,calibration\nby,a\nmethod,m\nmeniscus,0,1\n"
+                         "limit,meniscus_spread,1\ndue,2022-01-01\n";
     cr_assert_eq(sg_calibio_append(dir, "T-TH", wrong, strlen(wrong), &err), SG_EINVAL);
     cr_assert_eq(err.line, 4);
     /* a depth calibration naming a cylinder that is not one */
-    const char notcyl[] = "event,2031-01-01,calibration\nby,a\nmethod,m\ncylinder,T-TH\nbulb_volume_ml,67\n"
+    const char notcyl[] = "event,2021-01-01,calibration\nby,a\nmethod,m\ncylinder,T-TH\nbulb_volume_ml,67\n"
                           "bulb_length_mm,140\nneck_mm,0,105\nneck_mm,25,64\nneck_mm,50,23\nmeniscus,0,1\n"
-                          "limit,depth_residual_mm,0.5\nlimit,meniscus_spread,1\ndue,2032-01-01\n";
+                          "limit,depth_residual_mm,0.5\nlimit,meniscus_spread,1\ndue,2022-01-01\n";
     cr_assert_eq(sg_calibio_append(dir, "T-H152", notcyl, strlen(notcyl), &err), SG_EINVAL);
     cr_assert(strstr(err.msg, "not a cylinder") != NULL, "%s", err.msg);
     cr_assert_eq(err.line, 4);
+    /* observations read with a thermometer the register does not hold, or
+     * with an instrument that is not a thermometer */
+    const char nothermo[] = "event,2021-01-01,verification\nby,a\nmethod,m\nthermometer,T-TH9\nice_point,0.1\n"
+                            "limit,correction_max_c,0.5\ndue,2022-01-01\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", nothermo, strlen(nothermo), &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "'T-TH9' is not a thermometer") != NULL, "%s", err.msg);
+    cr_assert_eq(err.line, 4);
+    cr_assert_eq(err.col, 13);
+    const char cylthermo[] = "event,2021-01-01,verification\nby,a\nmethod,m\nthermometer,T-CY-A\nice_point,0.1\n"
+                             "limit,correction_max_c,0.5\ndue,2022-01-01\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", cylthermo, strlen(cylthermo), &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "'T-CY-A' is not a thermometer") != NULL, "%s", err.msg);
+    /* an event dated years ahead (a mistyped year) would block every later
+     * event, dates never decreasing: refused */
+    const char future[] = "event,2999-01-01,relocation\nby,a\nlocation,store\n";
+    cr_assert_eq(sg_calibio_append(dir, "T-TH", future, strlen(future), &err), SG_EINVAL);
+    cr_assert(strstr(err.msg, "event date 2999-01-01 is after today") != NULL, "%s", err.msg);
+    cr_assert_eq(err.line, 1);
     /* unknown instrument, bad ID, missing folder */
     cr_assert_eq(append_file(dir, "T-NONE", EVENTS "/th-ok.csv", &err), SG_ENOTFOUND);
     cr_assert_eq(append_file(dir, "../T-TH", EVENTS "/th-ok.csv", &err), SG_EINVAL);
@@ -645,7 +663,7 @@ Test(calibio, append_after_retirement_is_refused)
 {
     char dir[64];
     copy_register(dir, sizeof dir);
-    const char retire[] = "event,2031-01-01,retirement\nby,quality manager\nnote,broken stem\n";
+    const char retire[] = "event,2021-01-01,retirement\nby,quality manager\nnote,broken stem\n";
     struct sg_error err;
     cr_assert_eq(sg_calibio_append(dir, "T-TH", retire, strlen(retire), &err), SG_OK, "%s", err.msg);
     cr_assert_eq(append_file(dir, "T-TH", EVENTS "/th-ok.csv", &err), SG_EINVAL);
@@ -683,7 +701,7 @@ Test(calibio, append_refuses_a_repeated_event)
     cr_assert_eq(append_file(dir, "T-TH", EVENTS "/th-ok.csv", &err), SG_EINVAL);
     cr_assert_eq(err.line, 2); /* th-ok.csv opens with a comment line */
     cr_assert_eq(err.col, 1);
-    cr_assert(strstr(err.msg, "this verification of 2031-02-01 is already in the register") != NULL, "%s",
+    cr_assert(strstr(err.msg, "this verification of 2021-02-01 is already in the register") != NULL, "%s",
               err.msg);
     cr_assert(strstr(err.msg, "T-TH.csv line ") != NULL, "%s", err.msg);
     cr_assert(strstr(err.msg, "note row") != NULL, "%s", err.msg);
@@ -694,28 +712,28 @@ Test(calibio, append_refuses_a_repeated_event)
     free(before);
 
     /* the same observations in another order, or one value changed: another event */
-    const char other[] = "event,2031-02-01,verification\nby,tester\nmethod,ice point\nice_point,0.15\n"
-                         "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n";
+    const char other[] = "event,2021-02-01,verification\nby,tester\nmethod,ice point\nice_point,0.15\n"
+                         "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2022-02-01\n";
     cr_assert_eq(sg_calibio_append(dir, "T-TH", other, strlen(other), &err), SG_OK, "%s", err.msg);
     /* the same, differing only in who did it: still a repeat (the observations decide) */
-    const char by[] = "event,2031-02-01,verification\nby,someone else\nmethod,ice point\nice_point,0.15\n"
-                      "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n";
+    const char by[] = "event,2021-02-01,verification\nby,someone else\nmethod,ice point\nice_point,0.15\n"
+                      "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2022-02-01\n";
     cr_assert_eq(sg_calibio_append(dir, "T-TH", by, strlen(by), &err), SG_EINVAL);
     /* a genuine repeat says why in a note, and is then recorded; once */
-    const char again[] = "event,2031-02-01,verification\nby,tester\nmethod,ice point\nice_point,0.15\n"
-                         "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2032-02-01\n"
+    const char again[] = "event,2021-02-01,verification\nby,tester\nmethod,ice point\nice_point,0.15\n"
+                         "ice_point,0.10\nice_point,0.10\nlimit,correction_max_c,0.5\ndue,2022-02-01\n"
                          "note,repeated after refilling the ice bath\n";
     cr_assert_eq(sg_calibio_append(dir, "T-TH", again, strlen(again), &err), SG_OK, "%s", err.msg);
     cr_assert_eq(sg_calibio_append(dir, "T-TH", again, strlen(again), &err), SG_EINVAL);
     /* events without observations: a relocation to another place is another event */
-    const char move1[] = "event,2031-03-01,relocation\nby,tester\nlocation,bench 2\n";
-    const char move2[] = "event,2031-03-01,relocation\nby,tester\nlocation,bench 3\n";
+    const char move1[] = "event,2021-03-01,relocation\nby,tester\nlocation,bench 2\n";
+    const char move2[] = "event,2021-03-01,relocation\nby,tester\nlocation,bench 3\n";
     cr_assert_eq(sg_calibio_append(dir, "T-TH", move1, strlen(move1), &err), SG_OK, "%s", err.msg);
     cr_assert_eq(sg_calibio_append(dir, "T-TH", move2, strlen(move2), &err), SG_OK, "%s", err.msg);
     cr_assert_eq(sg_calibio_append(dir, "T-TH", move1, strlen(move1), &err), SG_EINVAL);
     /* twice in one event file: refused at the second, nothing of the file is added */
-    const char twice[] = "event,2031-04-01,relocation\nby,tester\nlocation,store\n"
-                         "event,2031-04-01,relocation\nby,tester\nlocation,store\n";
+    const char twice[] = "event,2021-04-01,relocation\nby,tester\nlocation,store\n"
+                         "event,2021-04-01,relocation\nby,tester\nlocation,store\n";
     cr_assert_eq(sg_calibio_append(dir, "T-TH", twice, strlen(twice), &err), SG_EINVAL);
     cr_assert_eq(err.line, 4);
     cr_assert(strstr(err.msg, "(this file line 1:") != NULL, "%s", err.msg);
@@ -998,7 +1016,7 @@ Test(calibio, register_path_that_is_a_file)
     cr_assert(strstr(err.msg, frag) != NULL, "%s", err.msg);
     cr_assert_eq(reg.n, 0);
     sg_cal_register_release(&reg);
-    const char ev[] = "event,2031-02-01,relocation\nby,tester\nlocation,store room\n";
+    const char ev[] = "event,2021-02-01,relocation\nby,tester\nlocation,store room\n";
     cr_assert_eq(sg_calibio_append(file, "T-TH", ev, strlen(ev), &err), SG_EINVAL);
     cr_assert(strstr(err.msg, frag) != NULL, "%s", err.msg);
     struct sg_record rec;

@@ -103,7 +103,7 @@ struct sg_cal_event {
     char location[SG_CAL_TEXT_MAX];     /* relocation: new location */
     bool has_due;
     struct sg_date due;                 /* the next calibration is due on this date */
-    struct sg_srcpos pos_due, pos_cylinder;
+    struct sg_srcpos pos_due, pos_cylinder, pos_thermometer;
     char refs[SG_CAL_REFS_MAX][SG_CAL_TEXT_MAX];   /* reference standards / certificates */
     size_t n_refs;
     char notes[SG_CAL_NOTES_MAX][SG_CAL_TEXT_MAX];

@@ -17,6 +17,7 @@
 #include <string.h>
 #include <sys/file.h>
 #include <sys/stat.h>
+#include <time.h>
 #include <unistd.h>
 
 #include "sedgrade/atomic.h"
@@ -678,10 +679,9 @@ static enum sg_status event_row(struct reader *rd, struct row *r)
         if (!valid_id(dst))
             return sg_error_set(rd->err, SG_EINVAL, r->line, r->f[1].col,
                                 "'%s' is not an instrument ID (1-63 characters of A-Z a-z 0-9 . _ -)", dst);
-        if (key[0] == 'c') {
-            ev->pos_cylinder.line = r->line;
-            ev->pos_cylinder.col = r->f[1].col;
-        }
+        struct sg_srcpos *pos = key[0] == 'c' ? &ev->pos_cylinder : &ev->pos_thermometer;
+        pos->line = r->line;
+        pos->col = r->f[1].col;
         return SG_OK;
     }
     if (strcmp(key, "reference") == 0 || strcmp(key, "note") == 0) {
@@ -1414,27 +1414,61 @@ static enum sg_status append_locked(const char *register_dir, const char *id, co
     add->n_events = 0;
     if ((st = refuse_repeats(&ins, first_new, path, err)) != SG_OK || (st = sg_cal_validate(&ins, err)) != SG_OK)
         goto cleanup;
+    /* the instruments a new event names (the cylinder of a depth
+     * calibration, the thermometer of the observations) are register
+     * instruments of that kind; and a new event has happened: it is not
+     * dated after today (one mistyped year would otherwise block every
+     * later event, since dates never decrease) */
+    struct sg_date today = {0, 0, 0};
+    {
+        const time_t now = time(NULL);
+        struct tm tm;
+        if (now != (time_t)-1 && localtime_r(&now, &tm) != NULL)
+            today = (struct sg_date){tm.tm_year + 1900, tm.tm_mon + 1, tm.tm_mday};
+    }
     for (size_t i = first_new; i < ins.n_events; i++) {
         const struct sg_cal_event *ev = &ins.events[i];
-        if (ev->cylinder[0] == '\0')
-            continue;
-        struct sg_cal_instrument cyl;
-        struct sg_error e;
-        sg_error_clear(&e);
-        const enum sg_status cst = sg_calibio_load(register_dir, ev->cylinder, &cyl, &e);
-        const bool is_cyl = cst == SG_OK && cyl.kind == SG_CAL_CYLINDER;
-        sg_cal_instrument_release(&cyl);
-        if (cst != SG_OK && cst != SG_ENOTFOUND) {
-            st = sg_error_set(err, SG_EINVAL, ev->pos_cylinder.line, ev->pos_cylinder.col,
-                              "cylinder '%s' cannot be read: %.300s", ev->cylinder, e.msg);
+        if (sg_date_is_set(today) && sg_date_days(ev->date) > sg_date_days(today) + 1) {
+            char d[11], t[11];
+            sg_date_format(ev->date, d);
+            sg_date_format(today, t);
+            st = sg_error_set(err, SG_EINVAL, ev->line, 1,
+                              "event date %s is after today, %s: the register records what has happened (check "
+                              "the date; an event in the future would block every later one)",
+                              d, t);
             goto cleanup;
         }
-        if (!is_cyl) {
-            st = sg_error_set(err, SG_EINVAL, ev->pos_cylinder.line, ev->pos_cylinder.col,
-                              "'%s' is not a cylinder of the register '%s' (name the cylinder the hydrometer was "
-                              "calibrated in, or add its file first)",
-                              ev->cylinder, register_dir);
-            goto cleanup;
+        const struct {
+            const char *id;
+            struct sg_srcpos pos;
+            enum sg_cal_kind kind;
+            const char *what, *advice;
+        } named[] = {
+            {ev->cylinder, ev->pos_cylinder, SG_CAL_CYLINDER, "cylinder", "the cylinder the hydrometer was "
+                                                                          "calibrated in"},
+            {ev->thermometer, ev->pos_thermometer, SG_CAL_THERMOMETER, "thermometer", "the thermometer the "
+                                                                                      "observations were read with"},
+        };
+        for (size_t j = 0; j < sizeof named / sizeof named[0]; j++) {
+            if (named[j].id[0] == '\0')
+                continue;
+            struct sg_cal_instrument other;
+            struct sg_error e;
+            sg_error_clear(&e);
+            const enum sg_status cst = sg_calibio_load(register_dir, named[j].id, &other, &e);
+            const bool right_kind = cst == SG_OK && other.kind == named[j].kind;
+            sg_cal_instrument_release(&other);
+            if (cst != SG_OK && cst != SG_ENOTFOUND) {
+                st = sg_error_set(err, SG_EINVAL, named[j].pos.line, named[j].pos.col, "%s '%s' cannot be read: %.300s",
+                                  named[j].what, named[j].id, e.msg);
+                goto cleanup;
+            }
+            if (!right_kind) {
+                st = sg_error_set(err, SG_EINVAL, named[j].pos.line, named[j].pos.col,
+                                  "'%s' is not a %s of the register '%s' (name %s, or add its file first)",
+                                  named[j].id, named[j].what, register_dir, named[j].advice);
+                goto cleanup;
+            }
         }
     }
     /* Old bytes unchanged, then a blank line and the new rows. */
