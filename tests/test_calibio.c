@@ -1050,10 +1050,17 @@ Test(calibio, resolve_with_another_entry)
     cr_assert(fabs(then.depth_at_zero_mm - now.depth_at_zero_mm) > 1e-6);
     cr_assert_float_eq(then.depth_at_zero_mm, now.depth_at_zero_mm, 1.0);
     sg_record_release(&rec);
-    /* a rejected entry cannot be applied */
+    /* a rejected entry is applied as asked (the impact of an "as found"
+     * result: calibration/RML-PP-03.csv, 2025-08-04, deliveries of 9.9102-
+     * 9.9125 g at 21.3 C, about 9.942 mL, 0.058 mL under the nominal 10 mL
+     * and beyond its 0.040 mL limit), with a warning note */
     record_for(&rec, "", "", "", "RML-PP-03", 2026, 10, 15);
-    cr_assert_eq(sg_calibio_resolve_with(DEMO_REGISTER, &rec, "RML-PP-03", "2025-08-04", &then, &err), SG_EINVAL);
-    cr_assert(strstr(err.msg, "rejected") != NULL, "%s", err.msg);
+    cr_assert_eq(sg_calibio_resolve_with(DEMO_REGISTER, &rec, "RML-PP-03", "2025-08-04", &then, &err), SG_OK,
+                 "%s", err.msg);
+    cr_assert_eq(then.n_notes, 1);
+    cr_assert_str_eq(then.notes[0].name, "entry_rejected");
+    cr_assert(strstr(then.notes[0].message, "rejected") != NULL, "%s", then.notes[0].message);
+    cr_assert_float_eq(then.pipette_volume_ml, 9.942, 0.001);
     cr_assert_eq(sg_calibio_resolve_with(DEMO_REGISTER, &rec, "RML-PP-03", "2025-08-05", &then, &err),
                  SG_ENOTFOUND);
     sg_record_release(&rec);
@@ -1307,8 +1314,8 @@ Test(calibio, cache_gives_the_same_results_and_messages)
         cr_assert(strstr(err.msg, "rejected") != NULL, "%s", err.msg);
         sg_record_release(&rec);
         record_for(&rec, "", "", "", "RML-PP-03", 2026, 10, 15);
-        cr_assert_eq(resolve_both(&cache, DEMO_REGISTER, &rec, "RML-PP-03", "2025-08-04", &k, &err), SG_EINVAL);
-        cr_assert(strstr(err.msg, "rejected") != NULL, "%s", err.msg);
+        cr_assert_eq(resolve_both(&cache, DEMO_REGISTER, &rec, "RML-PP-03", "2025-08-04", &k, &err), SG_OK);
+        cr_assert(k.n_notes == 1 && strstr(k.notes[0].message, "rejected") != NULL);
         sg_record_release(&rec);
     }
     sg_calibio_cache_release(&cache);

@@ -166,8 +166,9 @@ enum sg_status sg_calibio_resolve_with_cached(struct sg_calibio_cache *cache, co
 /* As sg_calibio_resolve, but for instrument override_id the entry named by
  * override_entry ("YYYY-MM-DD" or "YYYY-MM-DD#n", sg_cal_find_entry) is
  * applied instead of the entry in force, whatever the test date (for "what
- * if" comparisons; no overdue note for it). The entry must be accepted
- * (SG_EINVAL otherwise). override_id NULL: plain sg_calibio_resolve. */
+ * if" comparisons; no overdue note for it). A rejected entry is applied
+ * too (the impact of an "as found" result), with the warning note
+ * "entry_rejected" in k. override_id NULL: plain sg_calibio_resolve. */
 enum sg_status sg_calibio_resolve_with(const char *register_dir, const struct sg_record *rec,
                                        const char *override_id, const char *override_entry,
                                        struct sg_constants *k, struct sg_error *err);

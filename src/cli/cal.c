@@ -798,6 +798,7 @@ static int cal_impact(const struct cal_opts *o)
     printf("file,test_id,test_date,quantity,with_%s,with_%s,change,change_pct\n", from_label, to_label);
     size_t affected = 0, skipped = 0;
     int rc = SG_EXIT_OK;
+    bool said_rejected = false;
     struct sg_result ra, rb;
     sg_result_init(&ra);
     sg_result_init(&rb);
@@ -819,7 +820,13 @@ static int cal_impact(const struct cal_opts *o)
             continue;
         }
         affected++;
-        if ((st = sg_calibio_resolve_with_cached(&cal, &rec, id, to_entry, &kb, &err)) != SG_OK ||
+        st = sg_calibio_resolve_with_cached(&cal, &rec, id, to_entry, &kb, &err);
+        for (size_t j = 0; st == SG_OK && j < kb.n_notes && !said_rejected; j++)
+            if (strcmp(kb.notes[j].name, "entry_rejected") == 0) {
+                fprintf(stderr, "sedgrade: warning: %s\n", kb.notes[j].message);
+                said_rejected = true;
+            }
+        if (st != SG_OK ||
             (st = sg_reduce(&rec, &ka, &opt, &ra, &err)) != SG_OK ||
             (st = sg_reduce(&rec, &kb, &opt, &rb, &err)) != SG_OK) {
             sg_cli_report(files.items[i], &err);

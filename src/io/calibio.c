@@ -2007,10 +2007,14 @@ static enum sg_status resolve_one(struct resolver *rv, const char *id, struct sg
                 const struct sg_cal_result *res = NULL;
                 if ((st = slot_eval(s, idx, (enum sg_cal_part)p, (double)NAN, &res, &e)) != SG_OK)
                     return sg_error_set(rv->err, st, line, col, "instrument '%s': %.300s", id, e.msg);
+                /* a rejected entry is applied too, and said: the impact of
+                 * an "as found" result on the tests done with the
+                 * instrument is what an assessment of nonconforming
+                 * equipment asks for */
                 if (!res->accepted)
-                    return sg_error_set(rv->err, SG_EINVAL, line, col,
-                                        "the %s entry %s@%s was %.200s (choose an accepted entry)",
-                                        sg_cal_part_name((enum sg_cal_part)p), id, rv->ov_entry, res->decision);
+                    add_note(rv->k, "entry_rejected", SG_SEVERITY_WARNING,
+                             "the %s entry %s@%s was %.120s: applied as asked, to assess its impact",
+                             sg_cal_part_name((enum sg_cal_part)p), id, rv->ov_entry, res->decision);
                 entry[p] = (long)idx;
             }
         return SG_OK;
