@@ -1272,10 +1272,13 @@ Test(calibio, cache_gives_the_same_results_and_messages)
         record_for(&rec, "", "", "T-TH2", "", 2022, 3, 15);
         cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
         cr_assert(strstr(err.msg, "out_of_service on 2022-03-01") != NULL, "%s", err.msg);
+        cr_assert(strstr(err.msg, "(calibrate it, or use an instrument in service)") != NULL, "%s", err.msg);
         sg_record_release(&rec);
         record_for(&rec, "", "", "T-TH2", "", 2023, 9, 2);
         cr_assert_eq(resolve_both(&cache, dir, &rec, NULL, NULL, &k, &err), SG_EINVAL);
         cr_assert(strstr(err.msg, "retired on 2023-09-01") != NULL, "%s", err.msg);
+        /* a retired instrument is not calibrated again */
+        cr_assert(strstr(err.msg, "(it is retired: name an instrument in service)") != NULL, "%s", err.msg);
         sg_record_release(&rec);
         /* overdue: a warning note, the constants still applied (METHODS.md 10.5: -0.15 C) */
         record_for(&rec, "", "", "T-TH2", "", 2021, 2, 1);

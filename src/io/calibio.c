@@ -2021,9 +2021,10 @@ static enum sg_status resolve_one(struct resolver *rv, const char *id, struct sg
     }
     if (day->state == SG_CAL_OUT_OF_SERVICE || day->state == SG_CAL_RETIRED)
         return sg_error_set(rv->err, SG_EINVAL, line, col,
-                            "%s '%s' has no calibration in force on the test date %s: %.200s (calibrate it, or "
-                            "use an instrument in service)",
-                            sg_cal_kind_name(kind), id, date, day->text);
+                            "%s '%s' has no calibration in force on the test date %s: %.200s (%s)",
+                            sg_cal_kind_name(kind), id, date, day->text,
+                            day->state == SG_CAL_RETIRED ? "it is retired: name an instrument in service"
+                                                         : "calibrate it, or use an instrument in service");
     if (day->state == SG_CAL_OVERDUE && day->has_due) {
         char due[11];
         sg_date_format(day->due, due);
