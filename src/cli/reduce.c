@@ -619,6 +619,19 @@ static void remove_outputs(const char *dir, const char *id)
     }
 }
 
+/* Whether id names files in the output folder as a test id does:
+ * [A-Za-z0-9._-], not starting with '.' (the record rules). */
+static bool is_output_id(const char *id)
+{
+    if (id[0] == '\0' || id[0] == '.')
+        return false;
+    for (const char *c = id; *c; c++)
+        if (!((*c >= 'A' && *c <= 'Z') || (*c >= 'a' && *c <= 'z') || (*c >= '0' && *c <= '9') || *c == '.' ||
+              *c == '_' || *c == '-'))
+            return false;
+    return true;
+}
+
 static enum sg_status write_outputs(const struct reduce_cfg *cfg, const struct sg_record *rec,
                                     const struct sg_result *res, char *iobuf, size_t iobuf_size,
                                     struct sg_error *err)
@@ -829,6 +842,37 @@ static void run_job(struct batch *b, struct worker_state *w, struct job *job, st
         job->status = JOB_IO_FAILED;
     }
     sg_record_release(rec);
+}
+
+/* A test this run refused keeps no results of an earlier run beside the
+ * others: the per-test files named by its id are removed, and said. Done
+ * after every worker, for ids no test of this run reduced (a duplicate id
+ * refused here belongs to a test whose files are this run's), and only
+ * when this run writes per-test files (not with --outputs none). */
+static void remove_stale_results(const struct batch *b, const struct reduce_cfg *cfg)
+{
+    if (cfg->outputs == 0)
+        return;
+    for (size_t i = 0; i < b->n_jobs; i++) {
+        const struct job *job = &b->jobs[i];
+        if (job->status != JOB_REFUSED || !is_output_id(job->id))
+            continue;
+        if (b->ids.n_slots > 0 && *id_slot(&b->ids, job->id) != 0)
+            continue;
+        char path[PATH_MAX];
+        struct stat st;
+        if (snprintf(path, sizeof path, "%s/%s.summary.csv", cfg->out_dir, job->id) >= (int)sizeof path ||
+            (stat(path, &st) != 0 &&
+             (snprintf(path, sizeof path, "%s/%s.points.csv", cfg->out_dir, job->id) >= (int)sizeof path ||
+              stat(path, &st) != 0)))
+            continue;
+        remove_outputs(cfg->out_dir, job->id);
+        if (!cfg->quiet)
+            fprintf(stderr,
+                    "sedgrade: %s: removed the earlier results of test %s from %s (this run refused the test; "
+                    "they no longer match its record)\n",
+                    job->path, job->id, cfg->out_dir);
+    }
 }
 
 static void *worker(void *arg)
@@ -1384,6 +1428,7 @@ int sg_cli_reduce(int argc, char **argv)
     free(threads);
     sg_progress_finish(&b.progress);
 
+    remove_stale_results(&b, &cfg);
     size_t n_ok = 0, n_flagged = 0, n_failed_qc = 0, n_refused = 0, n_io = 0;
     for (size_t i = 0; i < b.n_jobs; i++) {
         switch (b.jobs[i].status) {
