@@ -945,11 +945,9 @@ enum sg_status sg_mc_run_ex(const struct sg_record *rec, const struct sg_constan
         return sg_error_set(err, SG_EINVAL, 0, 0,
                             "no reduced points to propagate uncertainty through (reduce the record first)");
 
-    struct sg_reduce_options def_opt;
-    if (opt == NULL) {
-        def_opt = sg_reduce_options_default();
+    const struct sg_reduce_options def_opt = sg_reduce_options_default();
+    if (opt == NULL)
         opt = &def_opt;
-    }
     struct plan p;
     memset(&p, 0, sizeof p);
     p.rec = rec;
