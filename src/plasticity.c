@@ -367,9 +367,10 @@ static enum sg_status add_uscs(struct ctx *x, const struct sg_result *res, doubl
     note[0] = '\0';
     if (isfinite(in.fines_pct) && !x->quiet) {
         const double f = in.fines_pct;
+        const enum sg_severity sev =
+            sg_classify_at_least(f, SG_PLAST_FINE_GRAINED_MIN_PCT) ? SG_SEVERITY_WARNING : SG_SEVERITY_INFO;
         if (!isfinite(ll) && sg_classify_at_least(f, SG_PLAST_CLEAN_MAX_PCT) &&
-            (st = FLAG(x, "fines_without_limits", sg_classify_at_least(f, SG_PLAST_FINE_GRAINED_MIN_PCT) ? SG_SEVERITY_WARNING
-                                                                                     : SG_SEVERITY_INFO,
+            (st = FLAG(x, "fines_without_limits", sev,
                        "fines %.1f %% of the fraction finer than 75 mm: the ASTM D2487 group needs the liquid and "
                        "plastic limits of the fines (add test,liquid_limit_pct and test,plastic_limit_pct)",
                        f)) != SG_OK)

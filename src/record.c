@@ -287,6 +287,16 @@ static bool is_id_char(char ch)
            ch == '_' || ch == '-';
 }
 
+bool sg_record_id_is_file_name(const char *id)
+{
+    if (id[0] == '\0' || id[0] == '.')
+        return false;
+    for (const char *c = id; *c != '\0'; c++)
+        if (!is_id_char(*c))
+            return false;
+    return true;
+}
+
 /* The id names output files: [A-Za-z0-9._-], not starting with '.' (a
  * hidden file; "." and ".." are folders), and not ending in ".report":
  * test "X.report"'s plot X.report.pdf is test X's report. */
@@ -300,10 +310,7 @@ static void check_id(struct checker *c, const struct sg_record *rec, struct sg_s
         return;
     }
     const size_t len = strnlen(rec->id, sizeof rec->id);
-    bool ok = len < sizeof rec->id && rec->id[0] != '.';
-    for (size_t i = 0; i < len && ok; i++)
-        ok = is_id_char(rec->id[i]);
-    if (!ok)
+    if (len == sizeof rec->id || !sg_record_id_is_file_name(rec->id))
         REPORT(c, rec->pos_id,
                "test id '%.*s' is not accepted (it names the output files: use letters, digits, '.', '_' and "
                "'-', starting with a letter or digit, e.g. BH1-2.5)",

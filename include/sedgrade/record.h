@@ -244,6 +244,11 @@ enum sg_status sg_record_check_value(enum sg_record_value which, double v, struc
  * found is added to diags (may be NULL); the first one is also written to
  * err. Returns SG_OK or SG_EINVAL. Does not check instrument names against a
  * register. */
+/* Whether id (a NUL-terminated string) may name output files as a test
+ * id: [A-Za-z0-9._-], not empty, not starting with '.' (a hidden file;
+ * "." and ".."). sg_record_validate also refuses ids ending in ".report". */
+bool sg_record_id_is_file_name(const char *id);
+
 enum sg_status sg_record_validate(const struct sg_record *rec, struct sg_diag_list *diags,
                                   struct sg_error *err);
 

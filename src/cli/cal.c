@@ -325,8 +325,7 @@ static int print_event_parts(const struct sg_cal_instrument *ins, size_t i, cons
         sg_cli_errorf("out of memory evaluating a calibration entry");
         return SG_EXIT_IO;
     }
-    bool ok = true;
-    int rc = SG_EXIT_OK;
+    int rc = SG_EXIT_OK; /* the largest status met */
     char label[96];
     sg_cal_entry_label(ins, i, label, sizeof label);
     for (unsigned p = 0; p < SG_CAL_PART_COUNT; p++) {
@@ -339,7 +338,7 @@ static int print_event_parts(const struct sg_cal_instrument *ins, size_t i, cons
         struct sg_error err;
         if (sg_cal_evaluate(ins, ev, (enum sg_cal_part)p, area, res, &err) != SG_OK) {
             sg_cli_errorf("%s: %s part: %s", label, sg_cal_part_name((enum sg_cal_part)p), err.msg);
-            ok = false;
+            rc = rc > SG_EXIT_INPUT ? rc : SG_EXIT_INPUT;
             continue;
         }
         char due[11] = "-";
@@ -355,7 +354,7 @@ static int print_event_parts(const struct sg_cal_instrument *ins, size_t i, cons
         }
     }
     free(res);
-    return !ok && rc < SG_EXIT_INPUT ? SG_EXIT_INPUT : rc;
+    return rc;
 }
 
 /* ---- show ------------------------------------------------------------------------ */
@@ -690,11 +689,10 @@ static bool walk(const char *dir, struct file_list *out, int depth)
         struct stat sb;
         if (stat(path, &sb) != 0)
             continue;
-        const size_t len = strlen(de->d_name);
         if (S_ISDIR(sb.st_mode)) {
             if (depth < 16)
                 (void)walk(path, out, depth + 1);
-        } else if (len > 4 && sg_cli_is_record_name(de->d_name)) {
+        } else if (sg_cli_is_record_name(de->d_name)) {
             ok = file_list_add(out, path);
         }
     }

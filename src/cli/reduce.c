@@ -619,17 +619,12 @@ static void remove_outputs(const char *dir, const char *id)
     }
 }
 
-/* Whether id names files in the output folder as a test id does:
- * [A-Za-z0-9._-], not starting with '.' (the record rules). */
-static bool is_output_id(const char *id)
+/* Whether dir holds the per-test file <id>.<suffix>. */
+static bool has_output(const char *dir, const char *id, const char *suffix)
 {
-    if (id[0] == '\0' || id[0] == '.')
-        return false;
-    for (const char *c = id; *c; c++)
-        if (!((*c >= 'A' && *c <= 'Z') || (*c >= 'a' && *c <= 'z') || (*c >= '0' && *c <= '9') || *c == '.' ||
-              *c == '_' || *c == '-'))
-            return false;
-    return true;
+    char path[PATH_MAX];
+    struct stat st;
+    return snprintf(path, sizeof path, "%s/%s.%s", dir, id, suffix) < (int)sizeof path && stat(path, &st) == 0;
 }
 
 static enum sg_status write_outputs(const struct reduce_cfg *cfg, const struct sg_record *rec,
@@ -855,16 +850,11 @@ static void remove_stale_results(const struct batch *b, const struct reduce_cfg 
         return;
     for (size_t i = 0; i < b->n_jobs; i++) {
         const struct job *job = &b->jobs[i];
-        if (job->status != JOB_REFUSED || !is_output_id(job->id))
+        if (job->status != JOB_REFUSED || !sg_record_id_is_file_name(job->id))
             continue;
         if (b->ids.n_slots > 0 && *id_slot(&b->ids, job->id) != 0)
             continue;
-        char path[PATH_MAX];
-        struct stat st;
-        if (snprintf(path, sizeof path, "%s/%s.summary.csv", cfg->out_dir, job->id) >= (int)sizeof path ||
-            (stat(path, &st) != 0 &&
-             (snprintf(path, sizeof path, "%s/%s.points.csv", cfg->out_dir, job->id) >= (int)sizeof path ||
-              stat(path, &st) != 0)))
+        if (!has_output(cfg->out_dir, job->id, "summary.csv") && !has_output(cfg->out_dir, job->id, "points.csv"))
             continue;
         remove_outputs(cfg->out_dir, job->id);
         if (!cfg->quiet)
